@@ -1,0 +1,2 @@
+/** Headless entry: `metric-triage <command> ...`. */
+process.stdout.write('metric-triage: no commands yet\n');

@@ -1,0 +1,2 @@
+// Webview entry (browser). Charts and panels land here.
+export {};
