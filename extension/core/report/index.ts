@@ -1,0 +1,5 @@
+export * from './types';
+export * from './estimativeWords';
+export * from './sparkline';
+export * from './findingBlock';
+export * from './renderFindingMarkdown';
