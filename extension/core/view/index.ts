@@ -4,5 +4,5 @@ export * from './renderWebviewHtml';
 export * from './decimateSeries';
 export * from './formatView';
 export * from './buildViewerModel';
-export * from './planFindingInsertion';
 export * from './buildChartConfig';
+export * from './renderTrendSvg';
