@@ -5,7 +5,9 @@
  */
 import type { AnalysisUpdateView, ViewerModel, WindowRangeView } from './core/view/types';
 
-export type { AnalysisUpdateView, ViewerModel, WindowRangeView } from './core/view/types';
+export type {
+  AnalysisUpdateView, ContributionView, SeriesGroupView, SeriesView, TimelineView, VerdictView, ViewerModel, WindowRangeView,
+} from './core/view/types';
 
 /** Host → webview: what to show. */
 export type ToWebview =
