@@ -15,6 +15,8 @@ export interface SimSeries {
   readonly kind: 'gauge' | 'counter';
   /** The simulator's own truth, for checks only; models see inferFamily(name, unit). */
   readonly trueFamily: Family;
+  /** Catalogue role (what the metric measures, e.g. `cpuUtil`, `serverLatency`); simulator truth. */
+  readonly role?: string;
   /** Raw values on the system grid; NaN = gap; counters are cumulative and may reset. */
   readonly values: Float64Array;
 }
@@ -42,4 +44,17 @@ export interface TrainingExample {
   readonly label: SimClass;
   readonly systemId: string;
   readonly metrics: readonly MetricWindow[];
+  /** Simulator truth per metric (same order as `metrics`), for checks and analysis only. */
+  readonly truth?: readonly MetricTruth[];
+  /** Grid step of the system the example came from. */
+  readonly stepMs?: number;
+  readonly namingStyle?: NamingStyle;
+}
+
+/** What the simulator knows about one metric of an example; never a model input. */
+export interface MetricTruth {
+  readonly role: string;
+  readonly trueFamily: Family;
+  /** True when the export held a cumulative counter (the example holds its per-second rate). */
+  readonly isCounter: boolean;
 }

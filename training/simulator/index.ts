@@ -1,0 +1,8 @@
+/** Public surface of the fault-injection simulator (training only; never shipped). */
+export { generateSystem, type GenerateOptions } from './generateSystem';
+export { sampleExamples, sampleOneExample, type SampleOptions } from './sampleExamples';
+export { buildSplits, buildFewShotSplits, drawSystemSeeds, HELD_OUT_CLASSES, type SplitOptions, type Splits, type FewShotOptions, type FewShotSplits } from './buildSplits';
+export { buildSystemSpec, formatSeriesId, SERVICES, type SystemSpec } from './systemSpec';
+export { convertCounterToRates } from './counterRates';
+export { createRandom, mixSeeds, type Random } from './random';
+export type { SimClass, HeldOutClass, SimSystem, SimSeries, SimIncident, TrainingExample, MetricTruth, NamingStyle } from './types';

@@ -1,0 +1,121 @@
+/**
+ * Seeded random numbers for the simulator: mulberry32 for uniforms (Tommy Ettinger's 32-bit
+ * generator, public domain) and a 65,536-point inverse-CDF table for normals. Own PRNG so that every dataset is
+ * reproducible from a seed on any Node version (Math.random cannot be seeded).
+ */
+export interface Random {
+  /** Uniform in [0, 1). */
+  next(): number;
+  /** Standard normal N(0, 1). */
+  normal(): number;
+  /** Uniform in [lo, hi). */
+  uniform(lo: number, hi: number): number;
+  /** Log-uniform in [lo, hi): equal weight per decade, for magnitudes spanning orders. */
+  logUniform(lo: number, hi: number): number;
+  /** Integer uniform in [lo, hi], both inclusive. */
+  int(lo: number, hi: number): number;
+  /** True with probability p. */
+  chance(p: number): boolean;
+  /** One element of a non-empty array. */
+  pick<T>(items: readonly T[]): T;
+  /** Student-t with `dof` degrees of freedom: heavy-tailed noise for bursts. */
+  studentT(dof: number): number;
+  /** Student-t with 2 degrees of freedom in closed form (one uniform): cheap heavy tails. */
+  studentT2(): number;
+}
+
+/** Mixes several integers into one 32-bit seed (splitmix-style avalanche), order-sensitive. */
+export function mixSeeds(...parts: readonly number[]): number {
+  let h = 0x9e3779b9;
+  for (const part of parts) {
+    h = Math.imul(h ^ (part | 0), 0x85ebca6b);
+    h ^= h >>> 13;
+    h = Math.imul(h, 0xc2b2ae35);
+    h ^= h >>> 16;
+    h = (h + 0x6d2b79f5) | 0;
+  }
+  return h >>> 0;
+}
+
+/** Stable 32-bit hash of a string (FNV-1a), to derive seeds from names. */
+export function hashString(text: string): number {
+  let h = 0x811c9dc5;
+  for (let i = 0; i < text.length; i += 1) {
+    h ^= text.charCodeAt(i);
+    h = Math.imul(h, 0x01000193);
+  }
+  return h >>> 0;
+}
+
+/**
+ * Inverse normal CDF (Acklam's rational approximation, relative error < 1.15e-9), used once to
+ * fill a lookup table: a table draw costs one uniform, which keeps rendering fast enough for
+ * thousands of examples per second. Tails beyond ±4.2σ are cut; heavy tails come separately.
+ */
+export function inverseNormalCdf(p: number): number {
+  const a = [-3.969683028665376e1, 2.209460984245205e2, -2.759285104469687e2, 1.38357751867269e2, -3.066479806614716e1, 2.506628277459239];
+  const b = [-5.447609879822406e1, 1.615858368580409e2, -1.556989798598866e2, 6.680131188771972e1, -1.328068155288572e1];
+  const c = [-7.784894002430293e-3, -3.223964580411365e-1, -2.400758277161838, -2.549732539343734, 4.374664141464968, 2.938163982698783];
+  const d = [7.784695709041462e-3, 3.224671290700398e-1, 2.445134137142996, 3.754408661907416];
+  const poly = (coef: readonly number[], x: number): number => coef.reduce((acc, k) => acc * x + k, 0);
+  if (p < 0.02425) {
+    const q = Math.sqrt(-2 * Math.log(p));
+    return poly(c, q) / (poly(d, q) * q + 1);
+  }
+  if (p > 1 - 0.02425) {
+    const q = Math.sqrt(-2 * Math.log(1 - p));
+    return -poly(c, q) / (poly(d, q) * q + 1);
+  }
+  const q = p - 0.5;
+  const r = q * q;
+  return (poly(a, r) * q) / (poly(b, r) * r + 1);
+}
+
+const NORMAL_TABLE_SIZE = 1 << 16;
+let normalTable: Float64Array | undefined;
+function getNormalTable(): Float64Array {
+  if (!normalTable) {
+    normalTable = new Float64Array(NORMAL_TABLE_SIZE);
+    for (let k = 0; k < NORMAL_TABLE_SIZE; k += 1) normalTable[k] = inverseNormalCdf((k + 0.5) / NORMAL_TABLE_SIZE);
+  }
+  return normalTable;
+}
+
+/** Creates a deterministic generator; the same seed always gives the same sequence. */
+export function createRandom(seed: number): Random {
+  let state = seed >>> 0;
+  const table = getNormalTable();
+  const next = (): number => {
+    state = (state + 0x6d2b79f5) | 0;
+    let t = state;
+    t = Math.imul(t ^ (t >>> 15), t | 1);
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+  };
+  const normal = (): number => table[(next() * NORMAL_TABLE_SIZE) | 0] as number;
+  return {
+    next,
+    normal,
+    uniform: (lo, hi) => lo + (hi - lo) * next(),
+    logUniform: (lo, hi) => Math.exp(Math.log(lo) + (Math.log(hi) - Math.log(lo)) * next()),
+    int: (lo, hi) => lo + Math.floor(next() * (hi - lo + 1)),
+    chance: (p) => next() < p,
+    pick: <T>(items: readonly T[]): T => {
+      if (items.length === 0) throw new Error('pick: expected a non-empty array, got 0 items');
+      return items[Math.floor(next() * items.length)] as T;
+    },
+    studentT2: () => {
+      // Inverse CDF of t(2): (2u-1) / sqrt(2u(1-u)), u kept away from 0 and 1.
+      const u = 1e-9 + (1 - 2e-9) * next();
+      return (2 * u - 1) / Math.sqrt(2 * u * (1 - u));
+    },
+    studentT: (dof) => {
+      let chi2 = 0;
+      for (let k = 0; k < dof; k += 1) {
+        const z = normal();
+        chi2 += z * z;
+      }
+      return normal() / Math.sqrt(chi2 / dof);
+    },
+  };
+}
