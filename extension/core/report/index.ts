@@ -3,3 +3,4 @@ export * from './estimativeWords';
 export * from './sparkline';
 export * from './findingBlock';
 export * from './renderFindingMarkdown';
+export * from './buildFinding';
