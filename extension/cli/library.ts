@@ -4,7 +4,7 @@
  */
 import { randomBytes } from 'node:crypto';
 import { isAbsolute, resolve } from 'node:path';
-import { createLibraryEntry, type LibraryEntryInput } from '../core/model/libraryEntry';
+import { createLibraryEntry, formatEntryId, type LibraryEntryInput } from '../core/model/libraryEntry';
 import { applyLibraryChange } from '../core/model/librarySerialize';
 import type { LibraryEntry } from '../core/model/libraryTypes';
 import { DEFAULT_LIBRARY_PATH, LibraryFileError, readLibraryFile, updateLibraryFile } from '../node/libraryStore';
@@ -63,8 +63,7 @@ export function resolveLibraryPath(cwd: string, library: string | undefined): st
 
 /** New entry id: UTC creation time (so ids sort by age) and 6 random hex digits. */
 export function createEntryId(nowMs: number): string {
-  const stamp = new Date(nowMs).toISOString().replace(/[-:]/g, '').replace(/\.\d+Z$/, 'Z');
-  return `${stamp}-${randomBytes(3).toString('hex')}`;
+  return formatEntryId(nowMs, randomBytes(3).toString('hex'));
 }
 
 async function listEntries(file: string, isJson: boolean, io: LibraryCliDeps): Promise<number> {

@@ -10,12 +10,20 @@ import {
 const STORED_DIGITS = 7;
 
 /**
- * Downsample a series to at most `maxPoints` points by averaging equal-width buckets of samples
- * (like re-reading the export at a coarser step). Gaps (NaN) are skipped inside a bucket; a bucket
- * of gaps only stays a gap (`null`). Series already short enough are copied unchanged (NaN → null).
- * Values are rounded to 7 significant digits. Empty input gives an empty array.
+ * How to thin a series: `mean` averages equal-width buckets (like re-reading the export at a
+ * coarser step; the classifier resamples windows the same way), `pick` keeps the middle sample of
+ * each bucket (keeps the spread, so baseline median/MAD — the classifier's normalisation — stay
+ * close to the full series', where averaging would shrink the MAD and inflate every deviation).
  */
-export function downsampleForLibrary(values: ArrayLike<number>, maxPoints: number = LIBRARY_MAX_POINTS): (number | null)[] {
+export type DownsampleMode = 'mean' | 'pick';
+
+/**
+ * Downsample a series to at most `maxPoints` points (see DownsampleMode). Gaps (NaN) are skipped
+ * inside a `mean` bucket; a bucket of gaps only, or a picked gap, stays a gap (`null`). Series
+ * already short enough are copied unchanged (NaN → null). Values are rounded to 7 significant
+ * digits. Empty input gives an empty array.
+ */
+export function downsampleForLibrary(values: ArrayLike<number>, maxPoints: number = LIBRARY_MAX_POINTS, mode: DownsampleMode = 'mean'): (number | null)[] {
   if (!Number.isInteger(maxPoints) || maxPoints < 1) throw new Error(`expected maxPoints ≥ 1, got ${maxPoints}`);
   const n = values.length;
   const count = Math.min(n, maxPoints);
@@ -23,6 +31,11 @@ export function downsampleForLibrary(values: ArrayLike<number>, maxPoints: numbe
   for (let b = 0; b < count; b++) {
     const from = Math.floor((b * n) / count);
     const to = Math.floor(((b + 1) * n) / count);
+    if (mode === 'pick') {
+      const v = values[Math.floor((from + to - 1) / 2)];
+      out[b] = Number.isFinite(v) ? roundStored(v) : null;
+      continue;
+    }
     let sum = 0;
     let used = 0;
     for (let i = from; i < to; i++) {
@@ -59,7 +72,8 @@ export interface LibraryEntryInput {
 }
 
 /**
- * A library entry from a labelled window: metrics downsampled to ≤ 64 points per window, numbers
+ * A library entry from a labelled window: metrics downsampled to ≤ 64 points per window (window by
+ * bucket means, baseline by picking samples), numbers
  * rounded to 7 significant digits, `isBuiltInClass` derived from the label. Metrics whose window
  * is all gaps are dropped (they carry nothing to re-embed). Throws (programmer error) on a bad
  * label, a non-finite embedding value or when no metric has data, naming what was expected.
@@ -75,7 +89,7 @@ export function createLibraryEntry(input: LibraryEntryInput): LibraryEntry {
   for (const m of input.metrics) {
     const window = downsampleForLibrary(m.window);
     if (window.every((v) => v === null)) continue;
-    const baseline = downsampleForLibrary(m.baseline);
+    const baseline = downsampleForLibrary(m.baseline, LIBRARY_MAX_POINTS, 'pick');
     metrics.push({ id: m.id, name: m.name, family: m.family, baseline: baseline.length > 0 ? baseline : [null], window });
   }
   if (metrics.length === 0) throw new Error(`expected at least one metric with data in the window, got ${input.metrics.length} metrics all empty`);
@@ -85,6 +99,16 @@ export function createLibraryEntry(input: LibraryEntryInput): LibraryEntry {
     ...(input.postmortem !== undefined ? { postmortem: input.postmortem } : {}),
     createdMs: input.createdMs, modelVersion: input.modelVersion, embedding, metrics,
   };
+}
+
+/**
+ * Entry id from the UTC creation time (so ids sort by age, and the file by id reads like a log)
+ * and a random hex suffix supplied by the caller (core has no randomness of its own), e.g.
+ * `20261104T140300Z-3f9a1c`.
+ */
+export function formatEntryId(nowMs: number, suffixHex: string): string {
+  const stamp = new Date(nowMs).toISOString().replace(/[-:]/g, '').replace(/\.\d+Z$/, 'Z');
+  return `${stamp}-${suffixHex}`;
 }
 
 /** True when `label` is one of the bundled model's classes. */
