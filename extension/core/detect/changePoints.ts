@@ -123,21 +123,25 @@ export function detectPelt(values: ArrayLike<number>, options: MeanChangeOptions
   const f = new Float64Array(n + 1).fill(Number.POSITIVE_INFINITY);
   const last = new Int32Array(n + 1);
   f[0] = -beta;
-  let candidates: number[] = [];
+  // Candidate set R kept compact in a typed array; costs reused for the pruning test.
+  const candidates = new Int32Array(n + 1);
+  const costs = new Float64Array(n + 1);
+  let size = 0;
   for (let t = 1; t <= n; t++) {
     const fresh = t - m;
-    if (fresh === 0 || fresh >= m) candidates.push(fresh);
-    if (candidates.length === 0) continue;
+    if (fresh === 0 || fresh >= m) candidates[size++] = fresh;
+    if (size === 0) continue;
     let best = Number.POSITIVE_INFINITY, arg = 0;
-    const costs = new Float64Array(candidates.length);
-    for (let j = 0; j < candidates.length; j++) {
+    for (let j = 0; j < size; j++) {
       const tau = candidates[j];
       costs[j] = f[tau] + computeSegmentSse(p, tau, t) / sigma2;
       if (costs[j] + beta < best) { best = costs[j] + beta; arg = tau; }
     }
     f[t] = best;
     last[t] = arg;
-    candidates = candidates.filter((_, j) => costs[j] <= best);
+    let kept = 0;
+    for (let j = 0; j < size; j++) if (costs[j] <= best) candidates[kept++] = candidates[j];
+    size = kept;
   }
   const out: number[] = [];
   for (let t = last[n]; t > 0; t = last[t]) out.push(t);

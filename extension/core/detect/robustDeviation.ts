@@ -4,7 +4,7 @@
  * σ̂ is a robust scale of the residual.
  */
 import { computeRobustScale, computeMedian, type RobustScaleMethod } from './robustStats';
-import { chooseSeasonPeriod, computeSeasonalBaseline } from './seasonalBaseline';
+import { chooseSeasonPeriod } from './seasonalBaseline';
 
 /** How the expected value was formed. */
 export type ReferenceMethod = 'median' | 'seasonal';
@@ -30,7 +30,7 @@ export interface RobustDeviation {
 export function computeRobustDeviation(values: Float64Array, stepMs: number, isSeasonalEnabled = true): RobustDeviation {
   const n = values.length;
   const season = isSeasonalEnabled ? chooseSeasonPeriod(values, stepMs) : undefined;
-  const expected = season ? computeSeasonalBaseline(values, season.periodSteps) : undefined;
+  const expected = season?.expected;
   const residual = new Float64Array(n);
   const level = expected ? 0 : computeMedian(values);
   for (let i = 0; i < n; i++) residual[i] = values[i] - (expected ? expected[i] : level);

@@ -41,9 +41,57 @@ export function computeSortedQuantile(sorted: ArrayLike<number>, p: number): num
   return sorted[lo] + (h - lo) * (sorted[hi] - sorted[lo]);
 }
 
+/** Copy of the non-NaN samples, in input order (no sort). */
+function copyFinite(values: ArrayLike<number>): Float64Array {
+  let count = 0;
+  for (let i = 0; i < values.length; i++) if (!Number.isNaN(values[i])) count++;
+  const out = new Float64Array(count);
+  let k = 0;
+  for (let i = 0; i < values.length; i++) if (!Number.isNaN(values[i])) out[k++] = values[i];
+  return out;
+}
+
+/** Rearranges `a` so a[k] is the k-th smallest (Hoare quickselect, median-of-three pivot). */
+function selectKth(a: Float64Array, k: number): number {
+  let lo = 0, hi = a.length - 1;
+  while (hi > lo) {
+    const mid = (lo + hi) >> 1;
+    if (a[mid] < a[lo]) swap(a, mid, lo);
+    if (a[hi] < a[lo]) swap(a, hi, lo);
+    if (a[hi] < a[mid]) swap(a, hi, mid);
+    const pivot = a[mid];
+    let i = lo, j = hi;
+    while (i <= j) {
+      while (a[i] < pivot) i++;
+      while (a[j] > pivot) j--;
+      if (i <= j) { swap(a, i, j); i++; j--; }
+    }
+    if (k <= j) hi = j; else if (k >= i) lo = i; else return a[k];
+  }
+  return a[k];
+}
+
+function swap(a: Float64Array, i: number, j: number): void { const t = a[i]; a[i] = a[j]; a[j] = t; }
+
+/**
+ * Type-7 quantile of an unsorted scratch array in O(n) expected time (the array is reordered).
+ * NaN for an empty array.
+ */
+export function computeQuantileInPlace(scratch: Float64Array, p: number): number {
+  const n = scratch.length;
+  if (n === 0) return Number.NaN;
+  const h = (n - 1) * Math.min(1, Math.max(0, p));
+  const lo = Math.floor(h);
+  const low = selectKth(scratch, lo);
+  if (h === lo || lo + 1 >= n) return low;
+  let next = Number.POSITIVE_INFINITY;
+  for (let i = lo + 1; i < n; i++) if (scratch[i] < next) next = scratch[i];
+  return low + (h - lo) * (next - low);
+}
+
 /** Median of the non-NaN samples; NaN when there are none. Even counts average the middle pair. */
 export function computeMedian(values: ArrayLike<number>): number {
-  return computeSortedQuantile(sortFinite(values), 0.5);
+  return computeQuantileInPlace(copyFinite(values), 0.5);
 }
 
 /**
@@ -51,13 +99,11 @@ export function computeMedian(values: ArrayLike<number>): number {
  * Returns NaN for empty input and 0 for constant input.
  */
 export function computeMad(values: ArrayLike<number>, center?: number): number {
-  const sorted = sortFinite(values);
-  if (sorted.length === 0) return Number.NaN;
-  const med = center ?? computeSortedQuantile(sorted, 0.5);
-  const dev = new Float64Array(sorted.length);
-  for (let i = 0; i < sorted.length; i++) dev[i] = Math.abs(sorted[i] - med);
-  dev.sort();
-  return computeSortedQuantile(dev, 0.5);
+  const finite = copyFinite(values);
+  if (finite.length === 0) return Number.NaN;
+  const med = center ?? computeQuantileInPlace(finite, 0.5);
+  for (let i = 0; i < finite.length; i++) finite[i] = Math.abs(finite[i] - med);
+  return computeQuantileInPlace(finite, 0.5);
 }
 
 /** MAD_n = 1.4826·MAD, a σ estimate that is consistent under normality. NaN for empty input. */
@@ -83,12 +129,12 @@ export interface RobustScale {
  * Empty or all-NaN input gives `{ median: NaN, scale: NaN, method: 'unit' }`.
  */
 export function computeRobustScale(values: ArrayLike<number>, relativeEpsilon = 0.01): RobustScale {
-  const sorted = sortFinite(values);
-  if (sorted.length === 0) return { median: Number.NaN, scale: Number.NaN, method: 'unit' };
-  const median = computeSortedQuantile(sorted, 0.5);
-  const madN = MAD_TO_SIGMA * computeMad(sorted, median);
+  const finite = copyFinite(values);
+  if (finite.length === 0) return { median: Number.NaN, scale: Number.NaN, method: 'unit' };
+  const median = computeQuantileInPlace(finite, 0.5);
+  const madN = MAD_TO_SIGMA * computeMad(finite, median);
   if (madN > 0 && Number.isFinite(madN)) return { median, scale: madN, method: 'mad' };
-  const iqr = computeSortedQuantile(sorted, 0.75) - computeSortedQuantile(sorted, 0.25);
+  const iqr = computeQuantileInPlace(finite, 0.75) - computeQuantileInPlace(finite, 0.25);
   if (iqr > 0 && Number.isFinite(iqr)) return { median, scale: iqr * IQR_TO_SIGMA, method: 'iqr' };
   const relative = relativeEpsilon * Math.abs(median);
   if (relative > 0 && Number.isFinite(relative)) return { median, scale: relative, method: 'relative' };
@@ -103,9 +149,9 @@ export function computeRobustScale(values: ArrayLike<number>, relativeEpsilon = 
  */
 export function computeModifiedZ(values: ArrayLike<number>): Float64Array {
   const out = new Float64Array(values.length);
-  const sorted = sortFinite(values);
+  const sorted = copyFinite(values);
   if (sorted.length === 0) return out.fill(Number.NaN);
-  const med = computeSortedQuantile(sorted, 0.5);
+  const med = computeQuantileInPlace(sorted, 0.5);
   const mad = computeMad(sorted, med);
   let factor: number;
   if (mad > 0) {

@@ -3,7 +3,7 @@
  * (the same time on previous days or weeks), so daily peaks are not flagged as incidents
  * (REFERENCE.md §4.1, "compare with the same time last day/week").
  */
-import { computeMad, sortFinite, computeSortedQuantile } from './robustStats';
+import { computeMad, computeMedian } from './robustStats';
 
 /** Candidate periods, shortest first: one day and one week, in ms. */
 export const SEASON_CANDIDATES_MS: readonly number[] = [86_400_000, 604_800_000];
@@ -14,6 +14,8 @@ export interface SeasonPeriod {
   readonly periodMs: number;
   /** MAD of the seasonal residual divided by the MAD around the plain median (< 1 = it helps). */
   readonly scaleRatio: number;
+  /** The seasonal baseline for this period (computeSeasonalBaseline), so callers need not redo it. */
+  readonly expected: Float64Array;
 }
 
 /** Median of the first `count` entries of a small scratch buffer (sorted in place). */
@@ -71,11 +73,10 @@ export function chooseSeasonPeriod(values: ArrayLike<number>, stepMs: number, ma
   for (const periodMs of SEASON_CANDIDATES_MS) {
     const periodSteps = Math.round(periodMs / stepMs);
     if (periodSteps < 4 || values.length < 3 * periodSteps) continue;
-    const residual = computeSeasonalResidual(values, computeSeasonalBaseline(values, periodSteps));
-    const sorted = sortFinite(residual);
-    const center = computeSortedQuantile(sorted, 0.5);
-    const scaleRatio = computeMad(sorted, center) / plainMad;
-    if (scaleRatio < maxScaleRatio && (!best || scaleRatio < best.scaleRatio)) best = { periodSteps, periodMs, scaleRatio };
+    const expected = computeSeasonalBaseline(values, periodSteps);
+    const residual = computeSeasonalResidual(values, expected);
+    const scaleRatio = computeMad(residual, computeMedian(residual)) / plainMad;
+    if (scaleRatio < maxScaleRatio && (!best || scaleRatio < best.scaleRatio)) best = { periodSteps, periodMs, scaleRatio, expected };
   }
   return best;
 }
