@@ -1,0 +1,161 @@
+import { CsvRowSplitter, detectDelimiter } from './csvRowSplitter';
+import { FirstLineBuffer, findFirstLine, type ExportReader } from './exportReader';
+import { FloatColumn, IssueCollector, formatSeriesId, inferKindFromName } from './seriesAccumulator';
+import { parseSeriesHeader } from './seriesNames';
+import { TimeCellReader } from './timestamps';
+import type { IngestResult, RawSeries } from './types';
+import { CellStatus, ValueCellReader } from './valueCells';
+
+/** Header names taken as the time column (case-insensitive); otherwise the first column is. */
+export const TIME_COLUMN_NAMES = new Set(['time', 'timestamp', 'ts', 'date', 'datetime', 'date_time', '_time', 'time_utc', 'epoch', 't']);
+
+interface WideColumn {
+  readonly index: number;
+  readonly name: string;
+  readonly labels: Record<string, string>;
+  unit: string | undefined;
+  hasMixedUnits: boolean;
+  readonly values: FloatColumn;
+}
+
+/**
+ * Reader for wide CSV: one time column plus one column per series (delimiter `,` `;` or tab,
+ * detected on the first line; BOM; RFC 4180 quoting; `name{label="v"}` headers; decimal comma with
+ * `;`). All series share one time array, so memory is ~8 bytes per cell. Rows whose time cannot be
+ * read are skipped with an error naming the line; unreadable cells become gaps with a warning.
+ */
+export function createWideCsvReader(file: string): ExportReader {
+  return new WideCsvReader(file);
+}
+
+class WideCsvReader implements ExportReader {
+  readonly #issues: IssueCollector;
+  readonly #firstLine = new FirstLineBuffer();
+  readonly #times = new FloatColumn(1024);
+  readonly #timeReader = new TimeCellReader();
+  #splitter: CsvRowSplitter | undefined;
+  #cells = new ValueCellReader(false);
+  #columns: WideColumn[] | undefined;
+  #timeIndex = 0;
+  #expectedFields = 0;
+
+  constructor(readonly file: string) {
+    this.#issues = new IssueCollector(file);
+  }
+
+  push(chunk: string): void {
+    if (this.#splitter !== undefined) { this.#splitter.push(chunk); return; }
+    const text = this.#firstLine.push(chunk);
+    if (text !== undefined) this.#start(text);
+  }
+
+  #start(text: string): void {
+    const delimiter = detectDelimiter(findFirstLine(text, true) ?? '');
+    this.#cells = new ValueCellReader(delimiter === ';');
+    this.#splitter = new CsvRowSplitter(delimiter, (fields, line) => this.#onRow(fields, line));
+    this.#splitter.push(text);
+  }
+
+  finish(): IngestResult {
+    if (this.#splitter === undefined) {
+      const rest = this.#firstLine.flush();
+      if (rest.trim() !== '') this.#start(rest);
+    }
+    this.#splitter?.finish();
+    const lastLine = this.#splitter?.nextLine ?? 1;
+    if (this.#columns === undefined) this.#issues.error(1, 'file is empty: expected a header line such as "time,<series>,..."');
+    else if (this.#times.length === 0) this.#issues.warning(lastLine, 'no data rows after the header');
+    return {
+      file: this.file,
+      format: 'wide-csv',
+      series: this.#buildSeries(),
+      issues: this.#issues.finish(lastLine),
+      assumptions: this.#describeAssumptions(),
+    };
+  }
+
+  #onRow(fields: readonly string[], line: number): void {
+    if (this.#columns === undefined) { this.#readHeader(fields, line); return; }
+    let count = fields.length;
+    while (count > this.#expectedFields && fields[count - 1].trim() === '') count--;
+    if (count > this.#expectedFields) {
+      this.#issues.error(line, `expected ${this.#expectedFields} fields, got ${count}; row skipped`);
+      return;
+    }
+    const timeCell = fields[this.#timeIndex] ?? '';
+    const timeMs = this.#timeReader.readTimeMs(timeCell);
+    if (Number.isNaN(timeMs)) {
+      this.#issues.error(line, `expected a timestamp (RFC 3339 or epoch number) in column ${this.#timeIndex + 1}, got "${clip(timeCell)}"; row skipped`);
+      return;
+    }
+    if (count < this.#expectedFields) this.#issues.warning(line, `expected ${this.#expectedFields} fields, got ${count}; missing cells read as gaps`);
+    this.#times.push(timeMs);
+    for (const column of this.#columns) this.#readCell(column, column.index < count ? fields[column.index] : '', line);
+  }
+
+  #readCell(column: WideColumn, cell: string, line: number): void {
+    const cells = this.#cells;
+    const value = cells.read(cell);
+    column.values.push(value);
+    if (cells.status === CellStatus.Invalid) {
+      this.#issues.warning(line, `expected a number in column "${column.name}", got "${clip(cell)}"; read as a gap`);
+    } else if (cells.unit !== '') {
+      if (column.unit === undefined) column.unit = cells.unit;
+      else if (column.unit !== cells.unit && !column.hasMixedUnits) {
+        column.hasMixedUnits = true;
+        this.#issues.warning(line, `column "${column.name}" mixes units: "${column.unit}" and "${cells.unit}"`);
+      }
+    }
+  }
+
+  #readHeader(fields: readonly string[], line: number): void {
+    const names = fields.map((f) => f.trim());
+    const named = names.findIndex((n) => TIME_COLUMN_NAMES.has(n.toLowerCase()));
+    this.#timeIndex = named >= 0 ? named : 0;
+    let count = names.length;
+    while (count > 1 && names[count - 1] === '') count--;
+    this.#expectedFields = count;
+    const seen = new Map<string, number>();
+    this.#columns = [];
+    for (let index = 0; index < count; index++) {
+      if (index === this.#timeIndex) continue;
+      const parsed = parseSeriesHeader(names[index] === '' ? `column_${index + 1}` : names[index]);
+      const labels = { ...parsed.labels };
+      const id = formatSeriesId(parsed.name, labels);
+      const previous = seen.get(id);
+      if (previous !== undefined) {
+        labels['column'] = String(index + 1);
+        this.#issues.warning(line, `duplicate column name "${names[index]}" (columns ${previous + 1} and ${index + 1}); told apart by a "column" label`);
+      }
+      seen.set(id, index);
+      this.#columns.push({ index, name: parsed.name, labels, unit: parsed.unit, hasMixedUnits: false, values: new FloatColumn(1024) });
+    }
+    if (this.#columns.length === 0) this.#issues.error(line, `expected a time column and at least one series column, got ${count} column(s)`);
+  }
+
+  #buildSeries(): RawSeries[] {
+    if (this.#columns === undefined || this.#times.length === 0) return [];
+    const timesMs = this.#times.toArray();
+    return this.#columns.map((c) => ({
+      id: formatSeriesId(c.name, c.labels),
+      name: c.name,
+      labels: c.labels,
+      unit: c.unit,
+      kind: inferKindFromName(c.name),
+      timesMs,
+      values: c.values.toArray(),
+    }));
+  }
+
+  #describeAssumptions(): string[] {
+    const out = this.#timeReader.describeAssumptions();
+    if (this.#cells.isDecimalComma) out.push('";" delimiter: decimal commas read as decimal points');
+    if (this.#cells.hasConvertedUnits) out.push('values written with units converted to base units (bytes, seconds)');
+    return out;
+  }
+}
+
+/** Cell text shortened for messages. */
+export function clip(text: string): string {
+  return text.length > 40 ? `${text.slice(0, 40)}…` : text;
+}
