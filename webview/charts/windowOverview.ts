@@ -125,6 +125,9 @@ export class WindowOverview {
       ctx.fillStyle = color;
       ctx.fillRect(left, 1, 2, HEIGHT_PX - 16);
       ctx.fillRect(right - 2, 1, 2, HEIGHT_PX - 16);
+      // Positions in CSS px, for the screen tests that drag the window like a person would.
+      canvas.dataset[`${name}LeftPx`] = left.toFixed(1);
+      canvas.dataset[`${name}RightPx`] = right.toFixed(1);
     }
     ctx.fillStyle = colors.muted;
     ctx.font = '11px sans-serif';

@@ -1,0 +1,15 @@
+import Mocha from 'mocha';
+
+/**
+ * Runs the given test modules with mocha inside the extension host. Each module is `require`d
+ * after mocha's globals exist (`pre-require`), which is how `mocha.addFile` loads them too; the
+ * modules are bundled, so they are passed as loader functions instead of file paths.
+ */
+export function runMochaSuites(loaders: readonly (() => unknown)[]): Promise<void> {
+  const mocha = new Mocha({ ui: 'bdd', color: false, timeout: 120_000, reporter: 'spec' });
+  mocha.suite.emit('pre-require', globalThis, 'editor-suite', mocha);
+  for (const load of loaders) load();
+  return new Promise((resolve, reject) => {
+    mocha.run((failures) => (failures > 0 ? reject(new Error(`${failures} editor test(s) failed`)) : resolve()));
+  });
+}
