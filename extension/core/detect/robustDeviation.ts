@@ -6,6 +6,9 @@
 import { computeRobustScale, computeMedian, type RobustScaleMethod } from './robustStats';
 import { chooseSeasonPeriod } from './seasonalBaseline';
 
+/** |z| is clamped to this so infinite samples do not poison later sums. */
+const Z_LIMIT = 1e6;
+
 /** How the expected value was formed. */
 export type ReferenceMethod = 'median' | 'seasonal';
 
@@ -25,7 +28,7 @@ export interface RobustDeviation {
  * Robust deviation of `values` sampled every `stepMs`. Residual scale falls back, when more than
  * half the residuals are equal (MAD = IQR = 0), to 1.2533·mean|residual| (Iglewicz & Hoaglin's
  * MAD = 0 rule), then to 1% of the median level, then to 1; a constant series gives all-zero z.
- * Empty or all-NaN input gives all-NaN z.
+ * Empty or all-NaN input gives all-NaN z; ±Infinity samples give z = ±1e6.
  */
 export function computeRobustDeviation(values: Float64Array, stepMs: number, isSeasonalEnabled = true): RobustDeviation {
   const n = values.length;
@@ -42,7 +45,9 @@ export function computeRobustDeviation(values: Float64Array, stepMs: number, isS
   }
   const z = new Float64Array(n);
   const center = Number.isNaN(robust.median) ? 0 : robust.median;
-  for (let i = 0; i < n; i++) z[i] = (residual[i] - center) / scale;
+  // ±Infinity samples (OpenMetrics allows them) become a very large but finite z, so sums,
+  // block means and PELT costs downstream stay finite.
+  for (let i = 0; i < n; i++) z[i] = Math.max(-Z_LIMIT, Math.min(Z_LIMIT, (residual[i] - center) / scale));
   return { z, referenceMethod: season ? 'seasonal' : 'median', periodSteps: season?.periodSteps, scale, scaleMethod };
 }
 

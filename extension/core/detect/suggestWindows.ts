@@ -27,7 +27,9 @@ const PELT_MAX_BLOCKS = 200;
  * - No step with consensus ≥ threshold: status 'no-incident' (consensus and series still returned).
  * - Otherwise 'ok': incident = strongest segment; baseline = a quiet stretch just before it, of equal
  *   length where the data allow and ≥ 3 samples, else after it (isBaselineAfterIncident), else none.
- * Gaps (NaN) are skipped everywhere; constant series score 0. Never throws on data.
+ * - A series whose length differs from the grid: 'insufficient-data' naming the series and both lengths.
+ * Gaps (NaN) are skipped everywhere; constant series score 0; ±Infinity counts as a huge deviation.
+ * Never throws on data.
  */
 export function suggestWindows(frame: MetricFrame, options: SuggestWindowsOptions = {}): WindowSuggestion {
   const n = frame.timesMs.length;
@@ -39,6 +41,11 @@ export function suggestWindows(frame: MetricFrame, options: SuggestWindowsOption
   if (n < o.minSamples) {
     return { ...base, status: 'insufficient-data', consensus: new Float64Array(n),
       reason: `expected at least ${o.minSamples} samples to suggest a window, got ${n}` };
+  }
+  const misfit = frame.series.find((s) => s.values.length !== n);
+  if (misfit) {
+    return { ...base, status: 'insufficient-data', consensus: new Float64Array(n),
+      reason: `series "${misfit.id}": expected ${n} values (one per grid time), got ${misfit.values.length}` };
   }
   const deviations = frame.series.map((s) => computeRobustDeviation(s.values, frame.stepMs, o.isSeasonalEnabled));
   const zs = deviations.map((d) => d.z);

@@ -67,8 +67,9 @@ async function evaluateBatch(value: CoalitionValue, coalitions: readonly Uint8Ar
 
 /**
  * Shapley value of each player. n = 0 gives empty arrays; n ≤ exactUpTo is exact with weights
- * |S|!(n−|S|−1)!/n!; larger n is sampled (see ShapleyOptions). Rejects (never silently returns)
- * when the value function returns the wrong count or a non-finite value.
+ * |S|!(n−|S|−1)!/n!; larger n is sampled (see ShapleyOptions; half-widths are Infinity if the
+ * budget allowed fewer than two pairs). Rejects (never silently returns) when the value function
+ * returns the wrong count or a non-finite value.
  */
 export async function computeShapley(playerCount: number, value: CoalitionValue, options: ShapleyOptions = {}): Promise<ShapleyResult> {
   if (!Number.isInteger(playerCount) || playerCount < 0) throw new Error(`Shapley: expected a player count ≥ 0, got ${playerCount}`);
@@ -126,60 +127,95 @@ function buildPrefixCoalitions(order: Int32Array, out: Uint8Array[]): void {
   }
 }
 
+/** Running mean and variance per player over antithetic pairs (Welford). */
+class PairStatistics {
+  readonly mean: Float64Array;
+  readonly #m2: Float64Array;
+  pairs = 0;
+  constructor(n: number) { this.mean = new Float64Array(n); this.#m2 = new Float64Array(n); }
+  add(sample: Float64Array): void {
+    this.pairs++;
+    for (let i = 0; i < sample.length; i++) {
+      const delta = sample[i] - this.mean[i];
+      this.mean[i] += delta / this.pairs;
+      this.#m2[i] += delta * (sample[i] - this.mean[i]);
+    }
+  }
+  /** 95% half-widths (normal quantile 1.96); Infinity before two pairs exist. */
+  computeHalfWidths(): Float64Array {
+    return this.#m2.map((m2) => (this.pairs > 1 ? 1.96 * Math.sqrt(m2 / (this.pairs - 1) / this.pairs) : Number.POSITIVE_INFINITY));
+  }
+}
+
+/**
+ * Marginal contributions of one antithetic pair, averaged: sample[i] = ½(Δᵢ forward + Δᵢ reverse).
+ * Each order's marginals telescope to vAll − vEmpty, so the sample sums to it exactly.
+ */
+function computePairSample(orders: readonly Int32Array[], v: Float64Array, offset: number, vEmpty: number,
+  vAll: number, sample: Float64Array): void {
+  const n = sample.length;
+  sample.fill(0);
+  orders.forEach((ord, which) => {
+    let previous = vEmpty;
+    for (let k = 0; k < n; k++) {
+      const current = k === n - 1 ? vAll : v[offset + which * (n - 1) + k];
+      sample[ord[k]] += (current - previous) / 2;
+      previous = current;
+    }
+  });
+}
+
 async function sampleShapley(n: number, value: CoalitionValue, options: ShapleyOptions, batchSize: number): Promise<ShapleyResult> {
   const started = performance.now();
   const budgetMs = options.timeBudgetMs ?? 1000;
   const target = options.targetHalfWidth ?? 0;
   const maxPairs = Math.max(1, Math.floor((options.maxPermutations ?? Number.POSITIVE_INFINITY) / 2));
   const random = createMulberry32(options.seed ?? 1);
-  const ends = await evaluateBatch(value, [new Uint8Array(n), new Uint8Array(n).fill(1)]);
-  const [vEmpty, vAll] = [ends[0], ends[1]];
-  let evaluations = 2;
-  const mean = new Float64Array(n), m2 = new Float64Array(n), halfWidth = new Float64Array(n);
+  const [vEmpty, vAll] = await evaluateBatch(value, [new Uint8Array(n), new Uint8Array(n).fill(1)]);
+  const stats = new PairStatistics(n);
   const pairsPerBatch = Math.max(1, Math.floor(batchSize / (2 * (n - 1))));
-  let pairs = 0;
-  const order = new Int32Array(n);
   const sample = new Float64Array(n);
+  let evaluations = 2;
+  let halfWidth = stats.computeHalfWidths();
   for (;;) {
-    const batchPairs = Math.min(pairsPerBatch, maxPairs - pairs);
-    const orders: Int32Array[] = [];
+    const pairOrders: Int32Array[][] = [];
     const coalitions: Uint8Array[] = [];
-    for (let p = 0; p < batchPairs; p++) {
-      for (let i = 0; i < n; i++) order[i] = i;
-      shuffle(order, random);
-      const forward = order.slice();
+    for (let p = 0; p < Math.min(pairsPerBatch, maxPairs - stats.pairs); p++) {
+      const forward = Int32Array.from({ length: n }, (_, i) => i);
+      shuffle(forward, random);
       const reverse = forward.slice().reverse();
-      orders.push(forward, reverse);
+      pairOrders.push([forward, reverse]);
       buildPrefixCoalitions(forward, coalitions);
       buildPrefixCoalitions(reverse, coalitions);
     }
     const v = await evaluateBatch(value, coalitions);
     evaluations += coalitions.length;
-    for (let p = 0; p < batchPairs; p++) {
-      sample.fill(0);
-      for (const which of [0, 1]) {
-        const ord = orders[2 * p + which];
-        const base = (2 * p + which) * (n - 1);
-        let previous = vEmpty;
-        for (let k = 0; k < n; k++) {
-          const current = k === n - 1 ? vAll : v[base + k];
-          sample[ord[k]] += (current - previous) / 2;
-          previous = current;
-        }
-      }
-      pairs++;
-      for (let i = 0; i < n; i++) {
-        const delta = sample[i] - mean[i];
-        mean[i] += delta / pairs;
-        m2[i] += delta * (sample[i] - mean[i]);
-      }
-    }
-    let widest = 0;
-    for (let i = 0; i < n; i++) {
-      halfWidth[i] = pairs > 1 ? 1.96 * Math.sqrt(m2[i] / (pairs - 1) / pairs) : Number.POSITIVE_INFINITY;
-      widest = Math.max(widest, halfWidth[i]);
-    }
-    if (pairs >= maxPairs || performance.now() - started >= budgetMs || (pairs >= 10 && widest <= target)) break;
+    pairOrders.forEach((orders, p) => {
+      computePairSample(orders, v, p * 2 * (n - 1), vEmpty, vAll, sample);
+      stats.add(sample);
+    });
+    halfWidth = stats.computeHalfWidths();
+    const widest = halfWidth.reduce((a, b) => Math.max(a, b), 0);
+    if (stats.pairs >= maxPairs || performance.now() - started >= budgetMs || (stats.pairs >= 10 && widest <= target)) break;
   }
-  return { values: mean, ci95HalfWidth: halfWidth, isExact: false, evaluations, total: vAll - vEmpty, permutations: 2 * pairs };
+  return { values: stats.mean, ci95HalfWidth: halfWidth, isExact: false, evaluations, total: vAll - vEmpty, permutations: 2 * stats.pairs };
+}
+
+/**
+ * Value function for the Shapley value of metrics (DESIGN.md §7): the empty coalition gets
+ * `emptyValue` (e.g. the log prior of the verdict class, since a model with every node masked has
+ * no input); every other coalition goes, in one batch, to `scoreCoalitions` (e.g. the classifier
+ * run with its node mask set to the coalition, returning the calibrated log-probability of the
+ * verdict class). Rejects when scoreCoalitions returns the wrong number of values.
+ */
+export function createMetricCoalitionValue(emptyValue: number, scoreCoalitions: CoalitionValue): CoalitionValue {
+  return async (coalitions) => {
+    const out = new Float64Array(coalitions.length).fill(emptyValue);
+    const index: number[] = [];
+    coalitions.forEach((c, i) => { if (c.some((bit) => bit !== 0)) index.push(i); });
+    if (index.length === 0) return out;
+    const scored = await evaluateBatch(scoreCoalitions, index.map((i) => coalitions[i]));
+    index.forEach((i, k) => { out[i] = scored[k]; });
+    return out;
+  };
 }

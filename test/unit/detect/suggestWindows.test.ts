@@ -113,4 +113,22 @@ describe('suggestWindows', () => {
     const r = suggestWindows(frame);
     assert.ok(r.incident && r.incident.startIndex <= 181 && r.incident.endIndex >= 218, `incident ${r.incident?.startIndex}-${r.incident?.endIndex}`);
   });
+
+  it('names the series and both lengths when a column does not match the grid', () => {
+    const frame = makeShiftScenario(50, 20, 30);
+    const broken: MetricFrame = { ...frame, series: [...frame.series, { ...frame.series[0], id: 'pantry_db_iops', values: new Float64Array(49) }] };
+    const r = suggestWindows(broken);
+    assert.equal(r.status, 'insufficient-data');
+    assert.match(r.reason, /"pantry_db_iops": expected 50 values.*got 49/);
+  });
+
+  it('treats ±Infinity samples as a large deviation and keeps every output finite', () => {
+    const frame = makeShiftScenario(120, 200, 200); // no injected shift inside the frame
+    frame.series[1].values[60] = Number.POSITIVE_INFINITY;
+    frame.series[1].values[61] = Number.POSITIVE_INFINITY;
+    const r = suggestWindows(frame);
+    assert.ok(r.incident && r.incident.startIndex <= 61 && r.incident.endIndex >= 60, `incident ${r.incident?.startIndex}`);
+    assert.ok(Array.from(r.consensus).every(Number.isFinite));
+    assert.ok(r.changePoints.every((c) => Number.isFinite(c.magnitude)));
+  });
 });

@@ -1,6 +1,6 @@
 import assert from 'node:assert/strict';
 import fc from 'fast-check';
-import { computeShapley, type CoalitionValue } from '../../../extension/core/explain/computeShapley';
+import { computeShapley, createMetricCoalitionValue, type CoalitionValue } from '../../../extension/core/explain/computeShapley';
 
 /** Wraps a per-coalition characteristic function as the batched value function computeShapley takes. */
 function asValue(v: (c: Uint8Array) => number): CoalitionValue {
@@ -115,5 +115,21 @@ describe('computeShapley efficiency (sum = v(all) − v(∅)) on random games', 
       assert.ok(Math.abs(r.total - (full[0] - full[1])) < 1e-12);
       assert.ok(Math.abs(r.values.reduce((a, b) => a + b, 0) - r.total) < 1e-9);
     }), { numRuns: 40, seed: 20261202 });
+  });
+});
+
+describe('createMetricCoalitionValue', () => {
+  it('gives the empty coalition the prior and scores the rest in one batch; the values still sum to v(all) − prior', async () => {
+    const batches: number[] = [];
+    const prior = Math.log(0.125); // uniform prior over 8 classes
+    const score: CoalitionValue = async (cs) => {
+      batches.push(cs.length);
+      return Float64Array.from(cs, (c) => Math.log(0.125 + 0.8 * (c[0] * 0.5 + c[1] * 0.3 + c[0] * c[2] * 0.2)));
+    };
+    const r = await computeShapley(3, createMetricCoalitionValue(prior, score));
+    assert.deepEqual(batches, [7]);
+    assert.ok(Math.abs(r.total - (Math.log(0.925) - prior)) < 1e-12);
+    assert.ok(Math.abs(r.values.reduce((a, b) => a + b, 0) - r.total) < 1e-12);
+    assert.ok(r.values[0] > r.values[2] && r.values[2] > 0, 'metric 0 carries most, metric 2 only with metric 0');
   });
 });
