@@ -1,0 +1,106 @@
+/**
+ * Baselines for the classifier evaluation (issue 3): trained on the same training split and scored
+ * on the same held-out systems as our model. The neural baselines read the same encoded node rows
+ * (encodeBatch) as our model, so only the architecture differs.
+ */
+import * as tf from '@tensorflow/tfjs-core';
+import '@tensorflow/tfjs-backend-cpu';
+import { DEFAULT_WINDOW_SPEC, encodeBatch, getRowLength } from '../../extension/core/model/encode';
+import { CLASSES, type NodeBatch } from '../../extension/core/model/types';
+import type { TrainingExample } from '../simulator/types';
+import { computeFamilySummary } from './familySummary';
+import { createGcnBaseline, createGinBaseline } from './graphBaselines';
+import { createGruBaseline } from './gruBaseline';
+import { fitNearestCentroid, predictNearestCentroid } from './nearestCentroid';
+import type { NodeSetModel, NodeSetModelSpec } from './nodeSetModel';
+import { createRandom } from './seededRandom';
+import { predictNodeSetModel, trainNodeSetModel } from './trainNodeSetModel';
+
+/** One baseline's predictions on the test split. */
+export interface BaselineResult {
+  readonly name: string;
+  /** predicted[i] = index into CLASSES for test[i]. */
+  readonly predicted: Int32Array;
+  /** Wall-clock training time (feature extraction/encoding of the training split included), seconds. */
+  readonly trainSeconds: number;
+}
+
+/** Options of {@link scoreBaselines}. */
+export interface BaselineOptions {
+  /** Seed of weight init and minibatch order (default 7). */
+  readonly seed?: number;
+  /** Epochs of the neural baselines (default 8). */
+  readonly epochs?: number;
+  readonly log?: (line: string) => void;
+}
+
+/** The three splits, as buildSplits returns them. */
+export interface BaselineSplit {
+  readonly train: readonly TrainingExample[];
+  readonly calibration: readonly TrainingExample[];
+  readonly test: readonly TrainingExample[];
+}
+
+/** Class index of a label, or -1 for classes the bundled model does not know (held-out classes). */
+function toClassIndex(label: string): number {
+  return (CLASSES as readonly string[]).indexOf(label);
+}
+
+function encodeEach(examples: readonly TrainingExample[]): NodeBatch[] {
+  return examples.map((e) => encodeBatch([e.metrics], DEFAULT_WINDOW_SPEC));
+}
+
+/**
+ * Trains the four baselines on `split.train` (examples whose label is not in CLASSES are skipped)
+ * and predicts every example of `split.test`. The calibration split is not used for fitting; it
+ * only gives a logged sanity score. Deterministic for a given seed. Order of results: GCN, GIN,
+ * GRU, family-statistics nearest centroid.
+ * @throws Error when the training split has no example with a known class.
+ */
+export async function scoreBaselines(
+  split: BaselineSplit,
+  options: BaselineOptions = {},
+): Promise<Array<{ name: string; predicted: Int32Array; trainSeconds: number }>> {
+  await tf.setBackend('cpu');
+  const seed = options.seed ?? 7;
+  const epochs = options.epochs ?? 8;
+  const log = options.log ?? (() => undefined);
+  const train = split.train.filter((e) => toClassIndex(e.label) >= 0);
+  if (train.length === 0) throw new Error(`expected training examples with a class in ${CLASSES.join(', ')}, got none of ${split.train.length}`);
+  const labels = Int32Array.from(train, (e) => toClassIndex(e.label));
+  const results: BaselineResult[] = [];
+
+  const encodeStart = performance.now();
+  const trainEncoded = encodeEach(train);
+  const encodeSeconds = (performance.now() - encodeStart) / 1000;
+  const testEncoded = encodeEach(split.test);
+  const spec: NodeSetModelSpec = {
+    windowLength: getRowLength(DEFAULT_WINDOW_SPEC), sequenceLength: DEFAULT_WINDOW_SPEC.sampleCount,
+    classCount: CLASSES.length, hiddenSize: 32,
+  };
+  const builders: ReadonlyArray<(random: () => number) => NodeSetModel> = [
+    (random) => createGcnBaseline(spec, random),
+    (random) => createGinBaseline(spec, random),
+    (random) => createGruBaseline({ ...spec, hiddenSize: 16 }, random),
+  ];
+  for (const [k, build] of builders.entries()) {
+    const random = createRandom(seed * 1000 + k);
+    const model = build(random);
+    const start = performance.now();
+    await trainNodeSetModel(model, trainEncoded, labels, CLASSES.length, { epochs, batchSize: 64, learningRate: 3e-3, random, log });
+    const trainSeconds = encodeSeconds + (performance.now() - start) / 1000;
+    results.push({ name: model.name, predicted: predictNodeSetModel(model, testEncoded), trainSeconds });
+    log(`${model.name}: trained in ${trainSeconds.toFixed(1)} s`);
+    model.variables.forEach((v) => v.dispose());
+  }
+
+  const start = performance.now();
+  const centroids = fitNearestCentroid(train.map((e) => computeFamilySummary(e.metrics)), labels, CLASSES.length);
+  const trainSeconds = (performance.now() - start) / 1000;
+  results.push({
+    name: 'Family statistics + nearest centroid',
+    predicted: predictNearestCentroid(centroids, split.test.map((e) => computeFamilySummary(e.metrics))),
+    trainSeconds,
+  });
+  return results;
+}
