@@ -116,3 +116,22 @@ describe('findNearestIncidents', () => {
     assert.ok(Math.abs(nearest[0].cosineSimilarity - 2 / Math.sqrt(4.01)) < 1e-12);
   });
 });
+
+describe('matchLibrary', () => {
+  it('skips entries of another model version, counts them, and blends only current ones', async () => {
+    const { matchLibrary } = await import('../../../extension/core/model/libraryMatch');
+    const entries = [
+      makeEntry({ id: 'a', label: 'pool_leak', embedding: [1, 0, 0], modelVersion: 'v2' }),
+      makeEntry({ id: 'b', label: 'pool_leak', embedding: [0, 0, 1], modelVersion: 'v1' }),
+    ];
+    const options = { normalization: 'l2' as const, temperature: 0.1, acceptDistance: 0.2, softness: 0.02, maxWeight: 0.9 };
+    const match = matchLibrary({ normal: 0.6, cpu_saturation: 0.4 }, [1, 0.01, 0], entries, 'v2', options);
+    assert.equal(match.usedEntryCount, 1);
+    assert.equal(match.staleEntryCount, 1);
+    assert.equal(match.verdict.className, 'pool_leak');
+    assert.deepEqual(match.nearest.map((n) => n.id), ['a']);
+    const none = matchLibrary({ normal: 0.6, cpu_saturation: 0.4 }, [1, 0.01, 0], entries, 'v3', options);
+    assert.equal(none.verdict.className, 'normal');
+    assert.equal(none.verdict.libraryWeight, 0);
+  });
+});
