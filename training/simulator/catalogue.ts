@@ -49,7 +49,7 @@ export const ROLES: readonly RoleDef[] = [
     dotted: [c('system.cpu.time', 1, 's', { 'cpu.mode': 'idle' })],
     snake_total: [c('node_cpu_seconds_total', 1, 's', { mode: 'idle' })],
     free_text: [g('CPU idle % ({host})', 100)] } },
-  { key: 'cpuIowait', source: 'iowait', trueFamily: 'cpu', inclusion: 0.35, copies: 'instance', forms: {
+  { key: 'cpuIowait', source: 'iowait', trueFamily: 'disk', inclusion: 0.35, copies: 'instance', forms: {
     dotted: [g('system.cpu.utilization', 1, '1', { 'cpu.mode': 'iowait' })],
     snake_total: [c('node_cpu_seconds_total', 1, 's', { mode: 'iowait' })],
     free_text: [g('CPU iowait % ({host})', 100)] } },

@@ -142,7 +142,7 @@ export function sampleOneExample(spec: SystemSpec, label: SimClass, rng: Random,
       baseline: values.slice(layout.baselineStart, layout.baselineStart + baselineSteps),
       window: values.slice(layout.windowStart, layout.windowStart + windowSteps),
     });
-    truth.push({ role: s.role ?? 'unknown', trueFamily: s.trueFamily, isCounter });
+    truth.push({ role: s.role ?? 'unknown', trueFamily: s.trueFamily, isCounter, name: s.name, unit: s.unit });
   });
   return { label, systemId: spec.id, metrics, truth, stepMs: spec.stepMs, namingStyle: spec.namingStyle };
 }

@@ -103,7 +103,7 @@ function expandRole(role: RoleDef, style: NamingStyle, vars: Record<string, stri
     for (let k = 0; k < count; k += 1) {
       const label = names[k] as string;
       const key = role.copies === 'device' ? 'dev' : 'host';
-      copies.push({ vars: { ...vars, [key]: label }, factor: count > 1 ? Math.exp(0.15 * rng.normal()) : 1, tailWeight: 0, extraLabel: [key === 'dev' ? 'device' : style === 'dotted' ? 'host.name' : 'instance', label] });
+      copies.push({ vars: { ...vars, [key]: label }, factor: count > 1 ? Math.exp(0.15 * rng.normal()) : 1, tailWeight: 0, extraLabel: role.copies === 'single' ? undefined : [key === 'dev' ? 'device' : style === 'dotted' ? 'host.name' : 'instance', label] });
     }
   }
   const noiseSigma = rng.uniform(0.01, 0.08);

@@ -57,4 +57,7 @@ export interface MetricTruth {
   readonly trueFamily: Family;
   /** True when the export held a cumulative counter (the example holds its per-second rate). */
   readonly isCounter: boolean;
+  /** Metric name without labels, and unit as exported (inference sees these two). */
+  readonly name: string;
+  readonly unit?: string;
 }
