@@ -3,3 +3,4 @@ export * from './computeShapley';
 export * from './effectSizes';
 export * from './rankTests';
 export * from './normalDistribution';
+export * from './computeFrameEffects';
