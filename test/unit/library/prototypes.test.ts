@@ -3,6 +3,7 @@ import * as tf from '@tensorflow/tfjs-core';
 import '@tensorflow/tfjs-backend-cpu';
 import { computePrototypes, scorePrototypes, softmax, squaredDistance, prepareEmbedding } from '../../../extension/core/model/prototypes';
 import { blendVerdict, computeLibraryWeight, findNearestIncidents, type BlendOptions } from '../../../extension/core/model/libraryVerdict';
+import { matchLibrary } from '../../../extension/core/model/libraryMatch';
 import { makeEntry } from './libraryFixtures';
 
 describe('prototypes (prototypical networks, Snell et al. 2017)', () => {
@@ -118,8 +119,7 @@ describe('findNearestIncidents', () => {
 });
 
 describe('matchLibrary', () => {
-  it('skips entries of another model version, counts them, and blends only current ones', async () => {
-    const { matchLibrary } = await import('../../../extension/core/model/libraryMatch');
+  it('skips entries of another model version, counts them, and blends only current ones', () => {
     const entries = [
       makeEntry({ id: 'a', label: 'pool_leak', embedding: [1, 0, 0], modelVersion: 'v2' }),
       makeEntry({ id: 'b', label: 'pool_leak', embedding: [0, 0, 1], modelVersion: 'v1' }),
