@@ -63,3 +63,27 @@ describe('renderWebviewHtml', () => {
     assert.throws(() => buildContentSecurityPolicy("x; script-src 'unsafe-inline'", NONCE), /expected a single CSP source/);
   });
 });
+
+describe('renderWebviewHtml parsed by a WHATWG HTML parser (parse5, reference implementation of the HTML Standard parsing algorithm)', () => {
+  it('round-trips hostile titles as text and keeps the CSP meta first in <head>', async () => {
+    const { parse } = await import('parse5');
+    const title = `Metrics — "pantry-db" <b>&amp;</b> 'x'`;
+    const html = renderWebviewHtml({ cspSource: CSP_SOURCE, nonce: NONCE, title, scriptUri: 'https://r/dist/webview.js', styleUris: ['https://r/media/viewer.css'] });
+    type Node = { nodeName: string; attrs?: { name: string; value: string }[]; childNodes?: Node[]; value?: string };
+    const document = parse(html) as unknown as Node;
+    const all: Node[] = [];
+    const walk = (node: Node): void => { all.push(node); for (const child of node.childNodes ?? []) walk(child); };
+    walk(document);
+    const head = all.find((n) => n.nodeName === 'head')!;
+    const headElements = (head.childNodes ?? []).filter((n) => !n.nodeName.startsWith('#'));
+    assert.equal(headElements[0].nodeName, 'meta');
+    const csp = headElements.find((n) => n.attrs?.some((a) => a.name === 'http-equiv' && a.value === 'Content-Security-Policy'));
+    assert.equal(csp?.attrs?.find((a) => a.name === 'content')?.value, buildContentSecurityPolicy(CSP_SOURCE, NONCE));
+    const titleNode = all.find((n) => n.nodeName === 'title')!;
+    assert.equal(titleNode.childNodes?.[0].value, title);
+    const scripts = all.filter((n) => n.nodeName === 'script');
+    assert.equal(scripts.length, 1);
+    assert.equal(scripts[0].attrs?.find((a) => a.name === 'nonce')?.value, NONCE);
+    assert.equal(all.filter((n) => n.nodeName === 'b').length, 0, 'no element injected by the title');
+  });
+});
