@@ -35,7 +35,7 @@ export function sniffFormat(head: string, fileName = ''): SniffResult {
   if (LINE_PROTOCOL_LINE.test(firstLine) && !/^[^,]*,[^=]*$/.test(firstLine.split(' ')[0] ?? '')) {
     return { format: 'line-protocol', reason: 'lines of "measurement,tags field=value timestamp"' };
   }
-  if (ext === 'lp' || ext === 'line' || ext === 'influx') return { format: 'line-protocol', reason: `file extension .${ext}` };
+  if ((ext === 'lp' || ext === 'line' || ext === 'influx') && !/[,;\t]/.test(firstLine)) return { format: 'line-protocol', reason: `file extension .${ext}` };
   const header = Papa.parse<string[]>(firstLine, { delimiter: detectDelimiter(firstLine) }).data[0] ?? [];
   if (isLongCsvHeader(header)) return { format: 'long-csv', reason: 'CSV header with a value column and a name/series/labels column' };
   return { format: 'wide-csv', reason: 'CSV with a time column and one column per series' };
