@@ -7,3 +7,4 @@ export * from './robustDeviation';
 export * from './consensusScore';
 export * from './windowTypes';
 export { suggestWindows } from './suggestWindows';
+export * from './refineOnset';

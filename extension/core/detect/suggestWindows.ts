@@ -8,6 +8,7 @@ import type { MetricFrame } from '../frame/types';
 import { computeRobustDeviation, type RobustDeviation } from './robustDeviation';
 import { computeConsensusScore, findAbnormalSegments, type AbnormalSegment } from './consensusScore';
 import { detectSequentialShifts } from './tabularCusum';
+import { refineOnsetIndex } from './refineOnset';
 import { detectPelt, estimateDifferenceSigma } from './changePoints';
 import {
   DEFAULT_WINDOW_OPTIONS, type ChangePointEvent, type IncidentCandidate, type SuggestWindowsOptions,
@@ -25,7 +26,8 @@ const PELT_MAX_BLOCKS = 200;
  * Suggests incident and baseline windows for `frame`.
  * - Frames with no series or fewer than `minSamples` (default 8) steps: status 'insufficient-data'.
  * - No step with consensus ≥ threshold: status 'no-incident' (consensus and series still returned).
- * - Otherwise 'ok': incident = strongest segment; baseline = a quiet stretch just before it, of equal
+ * - Otherwise 'ok': incident = strongest segment, its start moved back to the CUSUM onset of the
+ *   metrics carrying it (refineOnsetIndex); baseline = a quiet stretch just before it, of equal
  *   length where the data allow and ≥ 3 samples, else after it (isBaselineAfterIncident), else none.
  * - A series whose length differs from the grid: 'insufficient-data' naming the series and both lengths.
  * Gaps (NaN) are skipped everywhere; constant series score 0; ±Infinity counts as a huge deviation.
@@ -56,7 +58,9 @@ export function suggestWindows(frame: MetricFrame, options: SuggestWindowsOption
       reason: `no step reached the consensus threshold ${o.consensusThreshold} (|robust z| ≤ ${o.zFloor} + threshold everywhere)` };
   }
   const candidates = segments.slice(0, o.candidateCount).map((s) => toCandidate(frame, s));
-  const incident = candidates[0];
+  const refinedStart = refineOnsetIndex(zs, candidates[0], o.zFloor);
+  const incident: IncidentCandidate = { ...candidates[0], ...toWindow(frame, refinedStart, candidates[0].endIndex) };
+  candidates[0] = incident;
   const picked = pickBaseline(frame, consensus, o.consensusThreshold, incident);
   const regionStart = picked.window?.startIndex ?? Math.max(0, incident.startIndex - (incident.endIndex - incident.startIndex + 1));
   const regionEnd = Math.min(n - 1, incident.endIndex + (incident.endIndex - incident.startIndex + 1));

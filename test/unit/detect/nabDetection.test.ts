@@ -7,8 +7,9 @@ import { evaluateDetection } from '../../../training/evaluateDetection';
 // Rule: the single suggested incident window is a HIT for each labelled window it overlaps by at
 // least one sample, and a FALSE window when it overlaps none (including the file with no label).
 // Regression floor: the values measured when this detector was written (2026-12-02) were
-// 16 hits, 5 false windows, median onset error 100.5 samples after the labelled window start and
-// 0 samples from the labelled anomaly point. A change that does worse than that fails here.
+// 16 hits, 5 false windows, median onset error 99 samples after the labelled window start (NAB
+// windows are centred on the anomaly) and −1 sample from the labelled anomaly point.
+// A change that does worse than that fails here.
 describe('suggestWindows on the labelled cloud series (regression floor)', () => {
   let evaluation: ReturnType<typeof evaluateDetection>;
   before(function () {

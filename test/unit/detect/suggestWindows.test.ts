@@ -131,4 +131,13 @@ describe('suggestWindows', () => {
     assert.ok(Array.from(r.consensus).every(Number.isFinite));
     assert.ok(r.changePoints.every((c) => Number.isFinite(c.magnitude)));
   });
+
+  it('dates a slow ramp (leak-like) from the CUSUM onset, not from where it crosses the |z| threshold', () => {
+    const noise = makeNoise(4);
+    // pantry-db resident memory climbs 0.2σ per step from step 200 until a restart at 300.
+    const values = Float64Array.from({ length: 400 }, (_, i) => 500 + 5 * noise() + (i >= 200 && i < 300 ? i - 200 : 0));
+    const r = suggestWindows(makeFrame([{ id: 'pantry_db_resident_memory_bytes', family: 'memory', values }]));
+    assert.ok(r.incident && r.incident.startIndex >= 195 && r.incident.startIndex <= 212, `start ${r.incident?.startIndex}`);
+    assert.ok(r.baseline && r.baseline.endIndex < r.incident.startIndex);
+  });
 });
