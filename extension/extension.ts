@@ -1,8 +1,19 @@
-import type * as vscode from 'vscode';
+import * as vscode from 'vscode';
+import { analyzeExport } from './node/analyze';
+import { AnalysisState } from './host/analysisState';
+import type { HostDeps } from './host/analysisTypes';
+import { registerCommands } from './host/commands';
+import { registerMetricsEditor } from './host/metricsEditorProvider';
+import { registerStatusBar } from './host/statusBar';
 
-/** Wiring only: one register line per feature (features land in extension/host). */
-export function activate(_context: vscode.ExtensionContext): void {
-  // registered features are added here
+/** Wiring only: one register line per feature. */
+export function activate(context: vscode.ExtensionContext): void {
+  const deps: HostDeps = { analyzeExport, extensionUri: context.extensionUri };
+  const state = new AnalysisState();
+  context.subscriptions.push(state);
+  context.subscriptions.push(registerMetricsEditor(deps, state));
+  context.subscriptions.push(registerCommands(deps, state));
+  context.subscriptions.push(registerStatusBar(state));
 }
 
 export function deactivate(): void {

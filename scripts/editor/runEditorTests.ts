@@ -43,6 +43,13 @@ async function runHostSuite(name: string, suiteFile: string, isTrustEnabled: boo
   try {
     const page = context.pages()[0] ?? await context.newPage();
     const exitCode = new Promise<number>((resolve) => { void page.exposeFunction('codeAutomationExit', (code: number) => resolve(code)); });
+    // The extension host's console (mocha's reporter) reaches the page console; show it.
+    page.on('console', (message) => {
+      const text = message.text();
+      const at = text.indexOf('[editor-suite] ');
+      if (process.env.VERBOSE) process.stdout.write(`${text}\n`);
+      else if (at >= 0) process.stdout.write(`  ${text.slice(at + 15)}\n`);
+    });
     await page.exposeFunction('codeAutomationLog', (_type: string, args: unknown[]) => process.stdout.write(`${args.map(String).join(' ')}\n`));
     const remote = (p: string): string => `vscode-remote://127.0.0.1:${server.port}${p}`;
     const payload = JSON.stringify([['extensionDevelopmentPath', remote(REPO_DIR)], ['extensionTestsPath', remote(join(OUT_DIR, suiteFile))]]);

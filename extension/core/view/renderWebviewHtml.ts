@@ -10,6 +10,8 @@ export interface WebviewHtmlInput {
 }
 
 const NONCE_PATTERN = /^[A-Za-z0-9+/=-]{16,}$/;
+/** CSP3 §2.3.1 host-source / scheme-source (no quotes, `;` or `,`), or the keyword 'self'. */
+const SOURCE_PATTERN = /^(?:'self'|[A-Za-z][A-Za-z0-9+.-]*:(?:\/\/[^\s;,'"]*)?|(?:\*\.)?[A-Za-z0-9.-]+(?::\d+)?(?:\/[^\s;,'"]*)?)$/;
 
 /** Escape for HTML text and double-quoted attribute values (HTML Living Standard §13.1.2.3). */
 export function escapeHtml(text: string): string {
@@ -22,21 +24,25 @@ export function escapeHtml(text: string): string {
  * `data:` images (chart export). chart.js draws on canvas and sets sizes through the CSSOM,
  * which style-src does not govern, so no 'unsafe-inline' is needed; @vscode-elements uses
  * constructable stylesheets (adoptedStyleSheets), likewise outside style-src.
- * Throws when the nonce or cspSource could break out of the header (programmer error).
+ * `cspSource` may hold several source expressions separated by spaces (the web editor gives
+ * `'self' https://…`). Throws when the nonce or cspSource could break out of the header.
  */
 export function buildContentSecurityPolicy(cspSource: string, nonce: string): string {
   if (!NONCE_PATTERN.test(nonce)) {
     throw new Error(`expected a nonce of at least 16 base64/UUID characters, got ${JSON.stringify(nonce)}`);
   }
-  if (/[;,'"\s]/.test(cspSource) || cspSource.length === 0) {
-    throw new Error(`expected a single CSP source expression, got ${JSON.stringify(cspSource)}`);
+  // VS Code desktop gives one host-source; the web build (code-server 4.100 = VS Code 1.100.3) gives
+  // "'self' https://*.vscode-cdn.net". Accept a list of source expressions, nothing that ends a directive.
+  const sources = cspSource.trim().split(/[ \t]+/);
+  if (cspSource.trim().length === 0 || !sources.every((source) => SOURCE_PATTERN.test(source))) {
+    throw new Error(`expected CSP source expressions (host/scheme sources or 'self'), got ${JSON.stringify(cspSource)}`);
   }
   return [
     "default-src 'none'",
     `script-src 'nonce-${nonce}'`,
-    `style-src ${cspSource}`,
-    `img-src ${cspSource} data:`,
-    `font-src ${cspSource}`,
+    `style-src ${sources.join(' ')}`,
+    `img-src ${sources.join(' ')} data:`,
+    `font-src ${sources.join(' ')}`,
   ].join('; ');
 }
 

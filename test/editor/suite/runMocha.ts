@@ -1,3 +1,4 @@
+import { format } from 'node:util';
 import Mocha from 'mocha';
 
 /**
@@ -9,7 +10,10 @@ export function runMochaSuites(loaders: readonly (() => unknown)[]): Promise<voi
   const mocha = new Mocha({ ui: 'bdd', color: false, timeout: 120_000, reporter: 'spec' });
   mocha.suite.emit('pre-require', globalThis, 'editor-suite', mocha);
   for (const load of loaders) load();
-  return new Promise((resolve, reject) => {
+  // The extension host forwards console arguments unformatted; format them so the report reads well.
+  const log = console.log;
+  console.log = (...args: unknown[]) => log(`[editor-suite] ${format(...args)}`);
+  return new Promise<void>((resolve, reject) => {
     mocha.run((failures) => (failures > 0 ? reject(new Error(`${failures} editor test(s) failed`)) : resolve()));
-  });
+  }).finally(() => { console.log = log; });
 }

@@ -60,7 +60,17 @@ describe('renderWebviewHtml', () => {
   it('rejects nonces and sources that could break out of the policy', () => {
     assert.throws(() => buildContentSecurityPolicy(CSP_SOURCE, "abc'; script-src *"), /expected a nonce/);
     assert.throws(() => buildContentSecurityPolicy(CSP_SOURCE, 'short'), /expected a nonce/);
-    assert.throws(() => buildContentSecurityPolicy("x; script-src 'unsafe-inline'", NONCE), /expected a single CSP source/);
+    assert.throws(() => buildContentSecurityPolicy("x; script-src 'unsafe-inline'", NONCE), /expected CSP source expressions/);
+    assert.throws(() => buildContentSecurityPolicy("'unsafe-inline'", NONCE), /expected CSP source expressions/);
+    assert.throws(() => buildContentSecurityPolicy('', NONCE), /expected CSP source expressions/);
+  });
+
+  it("accepts the web editor's multi-source cspSource (seen in code-server 4.100.3 = VS Code 1.100.3)", () => {
+    const directives = parsePolicy(buildContentSecurityPolicy("'self' https://*.vscode-cdn.net", NONCE));
+    assert.deepEqual(directives.get('style-src'), ["'self'", 'https://*.vscode-cdn.net']);
+    assert.deepEqual(directives.get('img-src'), ["'self'", 'https://*.vscode-cdn.net', 'data:']);
+    assert.deepEqual(directives.get('script-src'), [`'nonce-${NONCE}'`]);
+    assert.deepEqual(parsePolicy(buildContentSecurityPolicy('vscode-webview-resource:', NONCE)).get('font-src'), ['vscode-webview-resource:']);
   });
 });
 
