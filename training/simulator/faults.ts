@@ -145,9 +145,10 @@ function applyErrorStorm(d: Drivers, plan: FaultPlan, env: Float64Array, rng: Ra
   // Typically right after a deploy: the new version starts, then fails fast.
   const deployAt = plan.startIndex - rng.int(0, 2);
   if (deployAt >= 0 && deployAt < n && rng.chance(0.7)) d.restart[deployAt] = 1;
-  const errorShare = 0.03 + 0.55 * plan.intensity * rng.next();
+  const errorShare = 0.03 + 0.6 * plan.intensity * Math.sqrt(rng.next());
   add(d, 'errorExtra', env, errorShare);
-  if (rng.chance(0.6)) scale(d, 'latencyScale', env, 1 - errorShare * rng.uniform(0.3, 0.9));
+  // Failed requests return fast, so the latency of all requests often drops.
+  if (rng.chance(0.6)) scale(d, 'latencyScale', env, Math.max(0.2, 1 - 1.5 * errorShare * rng.uniform(0.5, 1)));
   if (rng.chance(0.5)) scale(d, 'trafficScale', env, 1 + errorShare * rng.uniform(0.2, 1.2)); // retries
   if (rng.chance(0.3)) scale(d, 'cpuScale', env, rng.uniform(0.85, 1.05));
 }

@@ -91,7 +91,9 @@ function planLayout(spec: SystemSpec, label: SimClass, rng: Random, windowSteps:
   // baseline and window cost rendering time and add nothing the window does not show.
   // A leak is only visible once it has grown, so its windows may sit anywhere in the ramp.
   const maxLead = label === 'memory_leak' ? duration - windowSteps : Math.min(48, duration - windowSteps);
-  const lead = rng.chance(label === 'memory_leak' ? 0.1 : 0.4) ? -rng.int(0, Math.floor(windowSteps * 0.3)) : rng.int(0, Math.max(0, maxLead));
+  let lead = rng.chance(label === 'memory_leak' ? 0.1 : 0.4) ? -rng.int(0, Math.floor(windowSteps * 0.3)) : rng.int(0, Math.max(0, maxLead));
+  // Some leak windows reach past the end of the ramp, so they hold the OOM kill and restart.
+  if (label === 'memory_leak' && windowSteps >= 6 && rng.chance(0.25)) lead = Math.max(0, duration - windowSteps) + rng.int(1, Math.floor(windowSteps * 0.3));
   const onset = lead >= 0 ? anchor : anchor - lead;
   const windowStart = lead >= 0 ? anchor + lead : anchor;
   const windowEnd = windowStart + windowSteps - 1;

@@ -137,12 +137,20 @@ export function buildSystemSpec(seed: number): SystemSpec {
   const series: SeriesSpec[] = [];
   const seen = new Set<string>();
   const density = rng.uniform(0.5, 1.3);
+  // Real exports mix sources: some systems carry a few metrics named in another style.
+  const mixShare = rng.chance(0.6) ? 0 : rng.uniform(0.1, 0.35);
+  const styles: readonly NamingStyle[] = ['dotted', 'snake_total', 'free_text'];
   for (const role of [...ROLES, ...IRRELEVANT_ROLES]) {
     if (!rng.chance(Math.min(0.95, role.inclusion * density))) continue;
-    for (const s of expandRole(role, namingStyle, vars, hosts, rng, params)) {
-      if (seen.has(s.id)) continue;
-      seen.add(s.id);
-      series.push({ ...s, gapProbability: rng.chance(0.5) ? gapLevel : 0 });
+    // A second spelling of the same role (pod and node, process and host) inflates a family.
+    const copies = role.isIrrelevant ? 1 : rng.chance(0.25) ? 2 : 1;
+    for (let copy = 0; copy < copies; copy += 1) {
+      const style = rng.chance(mixShare) ? rng.pick(styles) : namingStyle;
+      for (const s of expandRole(role, style, vars, hosts, rng, params)) {
+        if (seen.has(s.id)) continue;
+        seen.add(s.id);
+        series.push({ ...s, gapProbability: rng.chance(0.5) ? gapLevel : 0 });
+      }
     }
   }
   if (series.length === 0) series.push(...expandRole(ROLES[0] as RoleDef, namingStyle, vars, hosts, rng, params));

@@ -46,7 +46,8 @@ describe('simulator: fault signatures (REFERENCE.md §5)', () => {
     ['cpu_saturation', ['cpuIdle'], -1, 0.8, 'idle time falls (polarity flip)'],
     ['memory_leak', ['memUsed', 'memRatio'], 1, 0.6, 'RSS / working set ramps'],
     ['disk_io_saturation', ['diskBusy'], 1, 0.85, 'io_time rate → 1 s/s'],
-    ['network_latency', ['callerLatency', 'clientLatency'], 1, 0.8, 'caller / client-call latency up'],
+    // The delay sits on the caller's path or on ours to the dependency; callers see it either way.
+    ['network_latency', ['callerLatency'], 1, 0.85, "callers' (service-level) latency up"],
     ['packet_loss', ['retrans'], 1, 0.8, 'TCP retransmits up'],
     ['traffic_surge', ['requests'], 1, 0.8, 'request rate up first'],
     ['error_storm', ['errorRatio'], 1, 0.85, 'error ratio jumps'],
