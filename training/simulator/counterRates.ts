@@ -1,20 +1,13 @@
 /**
- * Cumulative counter → per-second rate, as the frame does at inference: a drop is a reset and
- * the increment is the new value (PromQL rate() rule, REFERENCE.md §1.3); a gap bridges to the
- * last value seen within `maxGapSteps` steps, otherwise the rate is unknown (NaN).
+ * Cumulative counter → per-second rate through the frame's own converter, so training examples
+ * see exactly what inference sees (a drop is a reset and the increment is the new value, the
+ * PromQL rate() rule; gaps are bridged from the last finite sample).
  */
-export function convertCounterToRates(values: Float64Array, stepMs: number, maxGapSteps = 5): Float64Array {
-  const out = new Float64Array(values.length).fill(Number.NaN);
-  let lastIndex = -1;
-  for (let i = 0; i < values.length; i += 1) {
-    const v = values[i] as number;
-    if (Number.isNaN(v)) continue;
-    if (lastIndex >= 0 && i - lastIndex <= maxGapSteps) {
-      const prev = values[lastIndex] as number;
-      const delta = v >= prev ? v - prev : v;
-      out[i] = delta / (((i - lastIndex) * stepMs) / 1000);
-    }
-    lastIndex = i;
-  }
-  return out;
+import { convertCounterToRate } from '../../extension/core/frame/alignSeries';
+
+/** Rates on a regular grid of `stepMs`; the first sample (and leading gaps) have no rate: NaN. */
+export function convertCounterToRates(values: Float64Array, stepMs: number): Float64Array {
+  const timesMs = new Float64Array(values.length);
+  for (let i = 0; i < values.length; i += 1) timesMs[i] = i * stepMs;
+  return convertCounterToRate(timesMs, values).rates;
 }

@@ -6,3 +6,4 @@ export { buildSystemSpec, formatSeriesId, SERVICES, type SystemSpec } from './sy
 export { convertCounterToRates } from './counterRates';
 export { createRandom, mixSeeds, type Random } from './random';
 export type { SimClass, HeldOutClass, SimSystem, SimSeries, SimIncident, TrainingExample, MetricTruth, NamingStyle } from './types';
+export { measureSimulatorThroughput, type SimulatorThroughput } from './measureThroughput';

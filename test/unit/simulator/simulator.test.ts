@@ -31,6 +31,13 @@ describe('simulator: determinism and shape', () => {
     assert.ok(!sameExamples(sampleExamples(options), sampleExamples({ ...options, seed: 8 })));
   });
 
+  it('draws example i from (seed, i) alone, so a smaller count is a prefix of a larger one', () => {
+    const small = sampleExamples({ seed: 4, count: 12, systemSeeds: SYSTEM_SEEDS });
+    const large = sampleExamples({ seed: 4, count: 30, systemSeeds: SYSTEM_SEEDS });
+    assert.ok(sameExamples(small, large.slice(0, 12)));
+    assert.deepEqual(sampleExamples({ seed: 4, count: 0, systemSeeds: SYSTEM_SEEDS }), []);
+  });
+
   it('gives an identical system for the same seed and faults', () => {
     const a = generateSystem(42, { faults: ['memory_leak', 'error_storm'] });
     const b = generateSystem(42, { faults: ['memory_leak', 'error_storm'] });
