@@ -58,18 +58,24 @@ export interface RobustStats {
   readonly validCount: number;
 }
 
-/** Median of the finite values (NaN when there are none). */
-export function computeMedian(values: ArrayLike<number>): number {
-  const finite: number[] = [];
-  for (let i = 0; i < values.length; i++) if (Number.isFinite(values[i])) finite.push(values[i]);
-  return medianOfArray(finite);
+/** Finite values copied into a typed array (typed-array sort is numeric and much faster than Array#sort with a comparator). */
+function collectFinite(values: ArrayLike<number>): Float64Array {
+  const out = new Float64Array(values.length);
+  let n = 0;
+  for (let i = 0; i < values.length; i++) { const v = values[i]; if (Number.isFinite(v)) out[n++] = v; }
+  return out.subarray(0, n);
 }
 
-function medianOfArray(finite: number[]): number {
-  if (finite.length === 0) return Number.NaN;
-  finite.sort((a, b) => a - b);
-  const mid = finite.length >> 1;
-  return finite.length % 2 === 1 ? finite[mid] : (finite[mid - 1] + finite[mid]) / 2;
+function medianOfSorted(sorted: Float64Array): number {
+  const n = sorted.length;
+  if (n === 0) return Number.NaN;
+  const mid = n >> 1;
+  return n % 2 === 1 ? sorted[mid] : (sorted[mid - 1] + sorted[mid]) / 2;
+}
+
+/** Median of the finite values (NaN when there are none). */
+export function computeMedian(values: ArrayLike<number>): number {
+  return medianOfSorted(collectFinite(values).sort());
 }
 
 /**
@@ -77,16 +83,14 @@ function medianOfArray(finite: number[]): number {
  * Returns NaN median and 0 scale when no value is finite.
  */
 export function computeRobustStats(values: ArrayLike<number>): RobustStats {
-  const finite: number[] = [];
-  for (let i = 0; i < values.length; i++) if (Number.isFinite(values[i])) finite.push(values[i]);
+  const finite = collectFinite(values).sort();
   const validCount = finite.length;
-  const median = medianOfArray(finite);
+  const median = medianOfSorted(finite);
   if (validCount === 0) return { median, scale: 0, validCount };
-  const deviations = finite.map((v) => Math.abs(v - median));
   let meanAbs = 0;
-  for (const d of deviations) meanAbs += d;
+  for (let i = 0; i < validCount; i++) { const d = Math.abs(finite[i] - median); finite[i] = d; meanAbs += d; }
   meanAbs /= validCount;
-  const mad = medianOfArray(deviations);
+  const mad = medianOfSorted(finite.sort());
   // A baseline that is mostly one value with rare spikes has MAD 0; the mean deviation still sees the spikes.
   const scale = mad > 0 ? 1.4826 * mad : 1.2533 * meanAbs;
   return { median, scale, validCount };
@@ -171,6 +175,8 @@ export function encodeMetricRow(metric: MetricWindow, spec: WindowSpec, row: Flo
   return true;
 }
 
+const FAMILY_ID_BIGINTS: readonly bigint[] = FAMILIES.map((_, i) => BigInt(i));
+
 /** Family id (index in FAMILIES) of a metric; unknown strings map to 'other'. */
 export function getFamilyId(family: string): number {
   const index = (FAMILIES as readonly string[]).indexOf(family);
@@ -199,7 +205,7 @@ export function encodeBatch(examples: readonly (readonly MetricWindow[])[], spec
   const values = new Float32Array(batchSize * nodeCount * rowLength);
   const families = new BigInt64Array(batchSize * nodeCount);
   const mask = new Float32Array(batchSize * nodeCount);
-  const otherId = BigInt(FAMILIES.indexOf('other'));
+  const otherId = FAMILY_ID_BIGINTS[FAMILIES.indexOf('other')];
   families.fill(otherId);
   for (let b = 0; b < batchSize; b++) {
     const example = examples[b];
@@ -211,7 +217,7 @@ export function encodeBatch(examples: readonly (readonly MetricWindow[])[], spec
       const offset = (b * nodeCount + n) * rowLength;
       const row = values.subarray(offset, offset + rowLength);
       const isValid = encodeMetricRow(metric, spec, row);
-      families[b * nodeCount + n] = BigInt(getFamilyId(metric.family));
+      families[b * nodeCount + n] = FAMILY_ID_BIGINTS[getFamilyId(metric.family)];
       mask[b * nodeCount + n] = isValid ? 1 : 0;
     }
   }
