@@ -21,7 +21,7 @@ IGNORE=out/vscodeignore-$TARGET
 sed "s#napi-v6/linux/x64#napi-v6/$OS/$ARCH#" .vscodeignore > "$IGNORE"
 VERSION=$(node -p "require('./package.json').version")
 OUT=metric-triage-$TARGET-$VERSION.vsix
-npx vsce package --target "$TARGET" --ignoreFile "$IGNORE" --out "$OUT" --skip-license --allow-missing-repository >/dev/null
+npx vsce package --target "$TARGET" --ignoreFile "$IGNORE" --out "$OUT" --skip-license --allow-missing-repository --no-rewrite-relative-links >/dev/null
 SIZE=$(stat -c %s "$OUT")
 echo "$OUT $((SIZE / 1024)) KiB"
 npx vsce ls --ignoreFile "$IGNORE" --allow-missing-repository 2>/dev/null | sed 's#^#  #' | head -40 || true
