@@ -22,7 +22,7 @@ export interface RenderRequest {
 
 const RATIO_SOURCES = new Set(['cpu', 'steal', 'iowait', 'idle', 'throttle', 'mem', 'memAvailable', 'diskBusy', 'errorRatio', 'successRatio', 'poolUse']);
 
-function renderValues(s: SeriesSpec, o: Observables, rng: Random, stepMs: number, burstProbability: number): Float64Array {
+function renderValues(s: SeriesSpec, o: Observables, rng: Random, stepMs: number, burstProbability: number, shared: Float64Array): Float64Array {
   const n = o.traffic.length;
   const out = new Float64Array(n);
   if (s.role.isIrrelevant) {
@@ -45,8 +45,10 @@ function renderValues(s: SeriesSpec, o: Observables, rng: Random, stepMs: number
   for (let i = 0; i < n; i += 1) {
     let v = (base[i] as number) * s.factor;
     if (s.tailWeight > 0) v *= Math.exp(s.tailWeight * Math.log(o.tail[i] as number));
-    // 1 + σz is lognormal noise to first order for σ <= 0.16, at a fraction of the cost.
-    v *= 1 + sigma * rng.normal();
+    // 1 + σz is lognormal noise to first order for σ <= 0.16, at a fraction of the cost. Copies
+    // of one role share most of it (0.8² + 0.6² = 1), so percentiles stay ordered and pod/node
+    // copies move together, as real family members do.
+    v *= 1 + sigma * (0.8 * (shared[i] as number) + 0.6 * rng.normal());
     if (i === burstAt) {
       v *= 1 + 0.4 * Math.abs(rng.studentT2());
       burstAt = nextBurst(i + 1);
@@ -96,8 +98,14 @@ export function renderSystem(spec: SystemSpec, request: RenderRequest, rng: Rand
   for (const plan of request.faults) applyFault(drivers, plan, spec.params, rng);
   const baseTraffic = drawBaseTraffic(spec.params, rng, timesMs, spec.stepMs);
   const o = deriveObservables(spec.params, drivers, baseTraffic, rng, spec.stepMs);
+  const sharedNoise = new Map<string, Float64Array>();
   const series: SimSeries[] = spec.series.map((s) => {
-    const rendered = renderValues(s, o, rng, spec.stepMs, spec.params.burstProbability);
+    let shared = sharedNoise.get(s.role.key);
+    if (!shared) {
+      shared = Float64Array.from({ length: n }, () => rng.normal());
+      sharedNoise.set(s.role.key, shared);
+    }
+    const rendered = renderValues(s, o, rng, spec.stepMs, spec.params.burstProbability, shared);
     const values = s.kind === 'counter' ? accumulate(s, rendered, o, rng, spec.stepMs) : rendered;
     punchGaps(values, s.gapProbability, rng);
     return { name: s.name, labels: s.labels, unit: s.unit, kind: s.kind, trueFamily: s.trueFamily, role: s.role.key, values };
