@@ -13,6 +13,8 @@ export interface CliCommand {
 
 export const COMMANDS: Readonly<Record<string, CliCommand>> = {
   inspect: { summary: 'inspect FILE [--json]   what an export holds: format, time range, step, series, gaps', run: async (args) => (await import('./inspect')).runInspect(args) },
+  classify: { summary: 'classify FILE [--window START/END] [--baseline START/END] [--json] [--markdown OUT.md] [--library FILE]   estimate the fault type and explain it', run: async (args) => (await import('./classify')).runClassify(args) },
+  library: { summary: 'library add|list|rm …   the team\'s labelled past incidents', run: async (args) => (await import('./library')).runLibrary(args) },
 };
 
 const HELP = `metric-triage — read metric exports and explain an incident from them (a decision aid).

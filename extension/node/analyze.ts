@@ -1,0 +1,149 @@
+import { basename } from 'node:path';
+import { suggestWindows } from '../core/detect';
+import { computeEffectSizes, computeShapley } from '../core/explain';
+import type { IndexWindow, MetricFrame } from '../core/frame/types';
+import { createClassifier } from '../core/model/classifier';
+import { buildFinding } from '../core/report/buildFinding';
+import type { ChangePointEntry, Finding, MetricEffect, TimeSpan, VerdictSummary } from '../core/report/types';
+import { loadClassifierModel } from '../runtime/onnxRunner';
+import { loadFrame } from './readExport';
+
+/** A window in epoch ms UTC, inclusive. */
+export interface MsRange {
+  readonly startMs: number;
+  readonly endMs: number;
+}
+
+/** Options of analyzeExport. */
+export interface AnalyzeOptions {
+  readonly modelDir: string;
+  readonly incident?: MsRange;
+  readonly baseline?: MsRange;
+  readonly onProgress?: (fraction: number, message: string) => void;
+  readonly isCancelled?: () => boolean;
+  readonly libraryPath?: string;
+  /** Shapley sampling budget in ms when there are more than 12 metrics (default 1000). */
+  readonly shapleyBudgetMs?: number;
+  /** Clock for the finding's creation time (tests pass a fixed one). */
+  readonly nowMs?: number;
+}
+
+/** One analysis of an export: the frame, the finding, the suggested windows and the timeline. */
+export interface AnalysisResult {
+  readonly frame: MetricFrame;
+  readonly finding: Finding;
+  readonly suggestion: { readonly incident: TimeSpan; readonly baseline: TimeSpan };
+  readonly timeline: { readonly timesMs: Float64Array; readonly classNames: readonly string[]; readonly probabilities: Float32Array };
+}
+
+/** Thrown when the analysis cannot go on; the message says what the user can do. */
+export class AnalysisError extends Error {}
+
+function toSpan(frame: MetricFrame, w: IndexWindow): TimeSpan {
+  return { startIndex: w.startIndex, endIndex: w.endIndex, startMs: frame.timesMs[w.startIndex], endMs: frame.timesMs[w.endIndex] };
+}
+
+/** Grid indices covering [startMs, endMs]; an error names the range when it misses the frame. */
+export function findIndexWindow(frame: MetricFrame, range: MsRange, what: string): IndexWindow {
+  const t = frame.timesMs;
+  let startIndex = -1;
+  let endIndex = -1;
+  for (let i = 0; i < t.length; i++) {
+    if (startIndex < 0 && t[i] >= range.startMs) startIndex = i;
+    if (t[i] <= range.endMs) endIndex = i;
+  }
+  if (startIndex < 0 || endIndex < startIndex) {
+    throw new AnalysisError(`the ${what} ${new Date(range.startMs).toISOString()}/${new Date(range.endMs).toISOString()} holds no sample of the export (${new Date(t[0]).toISOString()} to ${new Date(t[t.length - 1]).toISOString()})`);
+  }
+  return { startIndex, endIndex };
+}
+
+/** A baseline of the same length right before the incident (at least 3 samples), else after it. */
+function defaultBaseline(frame: MetricFrame, incident: IndexWindow): IndexWindow {
+  const length = Math.max(3, incident.endIndex - incident.startIndex + 1);
+  if (incident.startIndex >= 3) return { startIndex: Math.max(0, incident.startIndex - length), endIndex: incident.startIndex - 1 };
+  const n = frame.timesMs.length;
+  return { startIndex: incident.endIndex + 1, endIndex: Math.min(n - 1, incident.endIndex + length) };
+}
+
+function chooseWindows(frame: MetricFrame, options: AnalyzeOptions): { incident: IndexWindow; baseline: IndexWindow; suggested: { incident: IndexWindow; baseline: IndexWindow }; caveats: string[]; changePoints: ChangePointEntry[] } {
+  const suggestion = suggestWindows(frame);
+  const caveats: string[] = [];
+  const n = frame.timesMs.length;
+  const fallbackIncident = { startIndex: Math.max(0, n - Math.max(3, Math.floor(n / 4))), endIndex: n - 1 };
+  const suggestedIncident: IndexWindow = suggestion.incident ?? fallbackIncident;
+  const suggestedBaseline: IndexWindow = suggestion.baseline ?? defaultBaseline(frame, suggestedIncident);
+  if (!suggestion.incident) caveats.push(`No incident window stood out (${suggestion.reason}); the last quarter of the export was used.`);
+  if (suggestion.isBaselineAfterIncident) caveats.push('Nothing quiet came before the incident; the baseline was taken after it.');
+  const incident = options.incident ? findIndexWindow(frame, options.incident, 'incident window') : suggestedIncident;
+  const baseline = options.baseline ? findIndexWindow(frame, options.baseline, 'baseline window')
+    : options.incident ? defaultBaseline(frame, incident) : suggestedBaseline;
+  if (options.incident) caveats.push('The incident window was chosen by hand.');
+  // One entry per series (its earliest change), so a metric that keeps shifting does not crowd out the rest.
+  const firstPerSeries = new Map<string, (typeof suggestion.changePoints)[number]>();
+  for (const c of [...suggestion.changePoints].sort((a, b) => a.timeMs - b.timeMs)) {
+    if (!firstPerSeries.has(c.seriesId)) firstPerSeries.set(c.seriesId, c);
+  }
+  const changePoints = [...firstPerSeries.values()].map((c) => ({
+    timeMs: c.timeMs, seriesId: c.seriesId,
+    description: `level shift ${c.direction} (robust z ${c.magnitude.toFixed(1)}, ${c.method === 'cusum' ? 'CUSUM' : 'PELT'})`,
+  }));
+  return { incident, baseline, suggested: { incident: suggestedIncident, baseline: suggestedBaseline }, caveats, changePoints };
+}
+
+function slice(values: Float64Array, w: IndexWindow): Float64Array {
+  return values.subarray(w.startIndex, w.endIndex + 1);
+}
+
+/**
+ * The whole job on one export: read it (streamed), build the frame, suggest windows (or use the
+ * given ones), classify the incident window, compute the timeline, Shapley values (nodes masked)
+ * and effect sizes per metric, and assemble the Finding. Throws AnalysisError (or the reader's
+ * error) with a message naming the file and what was expected when the export cannot be used.
+ */
+export async function analyzeExport(path: string, options: AnalyzeOptions): Promise<AnalysisResult> {
+  const progress = options.onProgress ?? (() => undefined);
+  progress(0, 'Reading export');
+  const loaded = await loadFrame(path, { isCancelled: options.isCancelled, onProgress: (read, total) => progress(0.4 * (total > 0 ? read / total : 0), 'Reading export') });
+  const { frame, sha256 } = loaded;
+  if (frame.series.length === 0 || frame.timesMs.length < 3) {
+    throw new AnalysisError(`${path}: expected at least 3 time steps of at least one numeric series, got ${frame.timesMs.length} steps of ${frame.series.length} series`);
+  }
+  progress(0.4, 'Finding the incident window');
+  const windows = chooseWindows(frame, options);
+  const model = await loadClassifierModel(options.modelDir);
+  const classifier = createClassifier(model.runner, model.spec);
+  progress(0.5, 'Classifying');
+  const verdict = await classifier.classifyWindow(frame, windows.incident, windows.baseline);
+  if (options.isCancelled?.()) throw new AnalysisError('cancelled');
+  progress(0.6, 'Timeline');
+  const timelinePoints = await classifier.timeline(frame, { isCancelled: options.isCancelled });
+  progress(0.75, 'Explaining');
+  const value = classifier.createSubsetValue(frame, windows.incident, windows.baseline, verdict.classIndex);
+  const shapley = await computeShapley(frame.series.length, value, { timeBudgetMs: options.shapleyBudgetMs ?? 1000, seed: 1 });
+  const effects: MetricEffect[] = frame.series.map((s) => computeEffectSizes(slice(s.values, windows.baseline), slice(s.values, windows.incident)));
+  const classNames = model.spec.classes;
+  const probabilities = new Float32Array(timelinePoints.length * classNames.length);
+  timelinePoints.forEach((p, i) => probabilities.set(p.probabilities, i * classNames.length));
+  const summary: VerdictSummary = {
+    className: verdict.className, probability: verdict.probability, isAbstained: verdict.isAbstained,
+    abstainReason: verdict.abstainReason, runnerUp: verdict.runnerUp,
+    probabilities: Object.fromEntries(classNames.map((c, i) => [c, verdict.probabilities[i]])),
+  };
+  const finding = buildFinding({
+    frame, verdict: summary, incident: toSpan(frame, windows.incident), baseline: toSpan(frame, windows.baseline),
+    shapley: shapley.values, shapleyCi95: shapley.ci95HalfWidth, effects, changePoints: windows.changePoints,
+    provenance: {
+      exportFile: basename(path), exportSha256: sha256, modelVersion: model.spec.version, modelSha256: model.sha256,
+      settings: { shapley: shapley.isExact ? 'exact' : `sampled (${shapley.permutations} permutations)`, abstainThreshold: model.spec.abstainThreshold },
+    },
+    createdMs: options.nowMs ?? Date.now(),
+    extraCaveats: windows.caveats,
+  });
+  progress(1, 'Done');
+  return {
+    frame, finding,
+    suggestion: { incident: toSpan(frame, windows.suggested.incident), baseline: toSpan(frame, windows.suggested.baseline) },
+    timeline: { timesMs: Float64Array.from(timelinePoints.map((p) => p.timeMs)), classNames, probabilities },
+  };
+}

@@ -1,0 +1,95 @@
+import * as assert from 'node:assert/strict';
+import { mkdtempSync, readFileSync, writeFileSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import Papa from 'papaparse';
+import { analyzeExport, type AnalysisResult } from '../../../extension/node/analyze';
+import { toClassifyJson, writeFindingInto, parseRange, UsageError } from '../../../extension/cli/classify';
+import { renderFindingMarkdown } from '../../../extension/core/report';
+
+const ROOT = join(__dirname, '..', '..', '..');
+const MODEL_DIR = join(ROOT, 'media', 'model');
+const NAB = join(ROOT, 'test', 'fixtures', 'nab-cloud');
+// Real open data: Numenta Anomaly Benchmark cloud series (MIT licence, LICENSE.txt beside it).
+const FILE = 'realAWSCloudwatch__ec2_cpu_utilization_24ae8d.csv';
+
+function labelledWindows(file: string): { startMs: number; endMs: number }[] {
+  const rows = Papa.parse<Record<string, string>>(readFileSync(join(NAB, 'labels.csv'), 'utf8'), { header: true, skipEmptyLines: true }).data;
+  return rows.filter((r) => r.file === `series/${file}`).map((r) => ({ startMs: Date.parse(r.fault_start), endMs: Date.parse(r.fault_end) }));
+}
+
+describe('analyzeExport end to end (real bundled model, real labelled cloud series)', function () {
+  this.timeout(120_000);
+  let result: AnalysisResult;
+
+  before(async () => {
+    result = await analyzeExport(join(NAB, 'series', FILE), { modelDir: MODEL_DIR, nowMs: Date.UTC(2026, 0, 1) });
+  });
+
+  it('suggests an incident window that overlaps a window labelled by the benchmark\'s people (NAB combined_windows)', () => {
+    const { incident } = result.finding;
+    const hits = labelledWindows(FILE).filter((w) => incident.startMs <= w.endMs && incident.endMs >= w.startMs);
+    assert.ok(hits.length >= 1, `suggested ${new Date(incident.startMs).toISOString()}..${new Date(incident.endMs).toISOString()} overlaps no labelled window`);
+  });
+
+  it('gives calibrated probabilities that sum to 1 and a runner-up below the winner', () => {
+    const p = Object.values(result.finding.verdict.probabilities);
+    assert.ok(Math.abs(p.reduce((a, b) => a + b, 0) - 1) < 1e-6);
+    assert.ok(result.finding.verdict.runnerUp.probability <= result.finding.verdict.probability);
+  });
+
+  it('attributes the whole value to the only metric (Shapley efficiency, Shapley 1953)', () => {
+    assert.equal(result.frame.series.length, 1);
+    assert.equal(result.finding.metrics.length, 1);
+    assert.ok(Number.isFinite(result.finding.metrics[0].shapley));
+    assert.equal(result.finding.metrics[0].shapleyCi95, 0);
+  });
+
+  it('reads the export timestamps as the file states them (RFC 3339 UTC in, RFC 3339 UTC out)', () => {
+    const json = toClassifyJson(result.finding) as { window: { start: string; end: string }; verdict: { class: string; probability: number; abstain: boolean }; metrics: { id: string; family: string; shapley: number }[] };
+    assert.match(json.window.start, /^\d{4}-\d{2}-\d{2}T\d{2}:\d{2}:\d{2}\.\d{3}Z$/);
+    assert.equal(json.window.start.slice(0, 4), '2014');
+    assert.equal(typeof json.verdict.abstain, 'boolean');
+    assert.equal(json.metrics[0].family, 'cpu');
+  });
+
+  it('has a timeline over the whole export with one probability row per point', () => {
+    const { timeline } = result;
+    assert.ok(timeline.timesMs.length > 100);
+    assert.equal(timeline.probabilities.length, timeline.timesMs.length * timeline.classNames.length);
+  });
+
+  it('writes the block into a postmortem, keeps the rest byte-identical and replaces it on a re-run', () => {
+    const dir = mkdtempSync(join(tmpdir(), 'mt-pm-'));
+    try {
+      const path = join(dir, 'postmortem.md');
+      const draft = '# Incident 42\n\n## Timeline (UTC)\n- 22:05 alert fired\n\n## Supporting information\n';
+      writeFileSync(path, draft);
+      const block = renderFindingMarkdown(result.finding);
+      writeFindingInto(path, block);
+      writeFindingInto(path, block);
+      const out = readFileSync(path, 'utf8');
+      assert.ok(out.startsWith(draft));
+      assert.equal(out.split('<!-- metric-triage:finding ').length - 1, 1);
+      assert.match(out, /Decision aid, not a root cause/);
+    } finally {
+      rmSync(dir, { recursive: true, force: true });
+    }
+  });
+
+  it('names the file when the export holds no numeric series', async () => {
+    const dir = mkdtempSync(join(tmpdir(), 'mt-bad-'));
+    try {
+      const path = join(dir, 'empty.csv');
+      writeFileSync(path, 'time,cpu\n');
+      await assert.rejects(analyzeExport(path, { modelDir: MODEL_DIR }), (e: Error) => e.message.includes('empty.csv'));
+    } finally {
+      rmSync(dir, { recursive: true, force: true });
+    }
+  });
+
+  it('rejects a window given without a time zone (RFC 3339 §5.6 requires one)', () => {
+    assert.throws(() => parseRange('2014-02-26T13:45:00/2014-02-27T06:25:00', '--window'), UsageError);
+    assert.deepEqual(parseRange('1996-12-19T16:39:57-08:00/1996-12-20T00:40:00Z', '--window'), { startMs: Date.UTC(1996, 11, 20, 0, 39, 57), endMs: Date.UTC(1996, 11, 20, 0, 40, 0) });
+  });
+});
