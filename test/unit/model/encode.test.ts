@@ -27,6 +27,21 @@ describe('encode: robust statistics', () => {
     assert.ok(Math.abs(stats.scale - 1.2533) < 1e-12);
   });
 
+  it('agrees with a sort-based median and MAD on random samples with ties', () => {
+    // Reference: the textbook definition via Array#sort (common practice).
+    let state = 7;
+    const rand = (): number => { state = (state * 16807) % 2147483647; return state / 2147483647; };
+    const medianBySort = (xs: number[]): number => { const s = [...xs].sort((a, b) => a - b); const m = s.length >> 1; return s.length % 2 ? s[m] : (s[m - 1] + s[m]) / 2; };
+    for (let trial = 0; trial < 500; trial++) {
+      const xs = Array.from({ length: 1 + Math.floor(rand() * 80) }, () => Math.round(rand() * 10));
+      const med = medianBySort(xs);
+      const mad = medianBySort(xs.map((x) => Math.abs(x - med)));
+      const stats = computeRobustStats(xs);
+      assert.equal(stats.median, med);
+      if (mad > 0) assert.ok(Math.abs(stats.scale - 1.4826 * mad) < 1e-12);
+    }
+  });
+
   it('ignores NaN gaps and reports the valid count', () => {
     const stats = computeRobustStats([1, Number.NaN, 3, Number.NaN, 2]);
     assert.equal(stats.validCount, 3);
