@@ -17,3 +17,9 @@ export function formatShortUtc(timeMs: number): string {
   const iso = new Date(timeMs).toISOString();
   return `${iso.slice(0, 10)} ${iso.slice(11, 16)}Z`;
 }
+
+/** Axis tick text in UTC: `HH:MM` for spans up to two days, `MM-DD` beyond (the heading names the date). */
+export function formatTickUtc(timeMs: number, spanMs: number): string {
+  const iso = new Date(timeMs).toISOString();
+  return spanMs <= 2 * 86_400_000 ? `${iso.slice(11, 16)}Z` : iso.slice(5, 10);
+}

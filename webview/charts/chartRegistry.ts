@@ -1,6 +1,7 @@
 import type { ChartConfiguration } from 'chart.js';
 import { buildLineChartConfig } from '../../extension/core/view/buildChartConfig';
 import type { WindowRangeView } from '../../extension/protocol';
+import { formatTickUtc } from '../dom';
 import { readThemeColors } from '../theme';
 import type { ViewState } from '../viewState';
 import { Chart, createOverlayPlugin } from './chartSetup';
@@ -70,7 +71,15 @@ export class ChartRegistry {
       colors: { line: colors.line, grid: colors.grid, text: colors.muted }, showTimeTicks: spec.showTimeTicks,
     });
     // The pure builder returns chart.js's plain config shape; the cast only widens readonly arrays.
-    const chart = new Chart(canvas, { ...(config as unknown as ChartConfiguration<'line'>), plugins: [this.#overlay] });
+    const chartConfig = config as unknown as ChartConfiguration<'line'>;
+    const ticks = chartConfig.options?.scales?.x?.ticks;
+    if (ticks) {
+      ticks.callback = function (value) {
+        const scale = this as unknown as { min: number; max: number };
+        return formatTickUtc(Number(value), scale.max - scale.min);
+      };
+    }
+    const chart = new Chart(canvas, { ...chartConfig, plugins: [this.#overlay] });
     this.#charts.set(canvas, chart);
     if (this.#charts.size === 1) this.onFirstChart();
   }
