@@ -4,6 +4,12 @@ import Papa from 'papaparse';
 export type CsvRowHandler = (fields: readonly string[], line: number) => void;
 
 /**
+ * Receives one record of a quote-free batch as a range of `text` (no substring made), so
+ * readers can scan fields and parse numbers in place. `end` excludes the line break and any CR.
+ */
+export type CsvPlainLineHandler = (text: string, start: number, end: number, line: number) => void;
+
+/**
  * Streams CSV text into records: text chunks are cut at the last line break outside quotes, and
  * each run of complete lines is parsed by papaparse (RFC 4180 quoting, doubled quotes, quoted line
  * breaks). Only the unfinished tail of a chunk is kept, so memory stays near one chunk.
@@ -15,7 +21,11 @@ export class CsvRowSplitter {
   #isFirstChunk = true;
   #newline: '\n' | '\r\n' = '\n';
 
-  constructor(readonly delimiter: string, readonly onRow: CsvRowHandler) {}
+  /**
+   * @param onPlainLine optional fast path: batches without any quote character skip papaparse and
+   *   hand each non-blank line over as a text range (RFC 4180 quoting only matters with quotes).
+   */
+  constructor(readonly delimiter: string, readonly onRow: CsvRowHandler, readonly onPlainLine?: CsvPlainLineHandler) {}
 
   /** Feeds the next chunk of text (any size, may split a record anywhere). */
   push(chunk: string): void {
@@ -43,6 +53,22 @@ export class CsvRowSplitter {
     return this.#nextLine;
   }
 
+  #scanPlain(text: string, onPlainLine: CsvPlainLineHandler): void {
+    let line = this.#nextLine;
+    let start = 0;
+    while (start < text.length) {
+      let nl = text.indexOf('\n', start);
+      const isLast = nl === -1;
+      if (isLast) nl = text.length;
+      let end = nl;
+      if (end > start && text.charCodeAt(end - 1) === 13) end--;
+      if (!isBlank(text, start, end)) onPlainLine(text, start, end, line);
+      line++;
+      start = nl + 1;
+    }
+    this.#nextLine = line;
+  }
+
   /** Index just after the last '\n' outside quotes in `chunk`, or -1; advances the quote state. */
   #findCut(chunk: string): number {
     if (!this.#isInQuotes && chunk.indexOf('"') === -1) {
@@ -61,6 +87,7 @@ export class CsvRowSplitter {
   }
 
   #parse(text: string): void {
+    if (this.onPlainLine !== undefined && text.indexOf('"') === -1) { this.#scanPlain(text, this.onPlainLine); return; }
     const result = Papa.parse<string[]>(text, { delimiter: this.delimiter, newline: this.#newline, skipEmptyLines: false });
     const hasQuotes = text.indexOf('"') !== -1;
     let line = this.#nextLine;
@@ -71,6 +98,11 @@ export class CsvRowSplitter {
     this.#nextLine += countChar(text, 10);
     if (text.length > 0 && text.charCodeAt(text.length - 1) !== 10) this.#nextLine++;
   }
+}
+
+function isBlank(text: string, start: number, end: number): boolean {
+  for (let i = start; i < end; i++) if (text.charCodeAt(i) > 32) return false;
+  return true;
 }
 
 function countChar(text: string, code: number): number {
@@ -100,4 +132,30 @@ export function detectDelimiter(firstLine: string): ',' | ';' | '\t' {
   if (counts['\t'] > counts[','] && counts['\t'] >= counts[';']) return '\t';
   if (counts[';'] > counts[',']) return ';';
   return ',';
+}
+
+/**
+ * Field boundaries of a quote-free line `text[start, end)`: writes the start of field i to
+ * `bounds[i]` and `end + 1` after the last field, so field i spans `bounds[i] … bounds[i+1] - 1`.
+ * Returns the field count, or -1 when `bounds` is too small (callers then split the slow way).
+ */
+export function findFieldBounds(text: string, start: number, end: number, delimiter: string, bounds: Int32Array): number {
+  let count = 0;
+  bounds[0] = start;
+  let pos = start;
+  for (;;) {
+    const d = text.indexOf(delimiter, pos);
+    if (d === -1 || d >= end) break;
+    count++;
+    if (count >= bounds.length - 1) return -1;
+    bounds[count] = d + 1;
+    pos = d + 1;
+  }
+  bounds[count + 1] = end + 1;
+  return count + 1;
+}
+
+/** Fields of a quote-free line as strings (header and rare slow paths). */
+export function splitPlainLine(text: string, start: number, end: number, delimiter: string): string[] {
+  return text.slice(start, end).split(delimiter);
 }

@@ -1,4 +1,5 @@
-import { CsvRowSplitter, detectDelimiter } from './csvRowSplitter';
+import { CsvRowSplitter, detectDelimiter, findFieldBounds, splitPlainLine } from './csvRowSplitter';
+import { parseDecimalRange } from './parseDecimalRange';
 import { FirstLineBuffer, findFirstLine, type ExportReader } from './exportReader';
 import { IssueCollector, SeriesAccumulator, formatSeriesId, inferKindFromName } from './seriesAccumulator';
 import { parseLabelSet, parseSeriesHeader } from './seriesNames';
@@ -51,6 +52,10 @@ class LongCsvReader implements ExportReader {
   readonly #series = new Map<string, SeriesAccumulator>();
   readonly #byId = new Map<string, SeriesAccumulator>();
   #cells = new ValueCellReader(false);
+  #delimiter = ',';
+  #bounds = new Int32Array(64);
+  /** Raw identity text (the fields between time and value, as written) → series, for the hot path. */
+  readonly #plainSeries = new Map<string, SeriesAccumulator>();
   #splitter: CsvRowSplitter | undefined;
   #layout: LongLayout | undefined;
 
@@ -67,7 +72,8 @@ class LongCsvReader implements ExportReader {
   #start(text: string): void {
     const delimiter = detectDelimiter(findFirstLine(text, true) ?? '');
     this.#cells = new ValueCellReader(delimiter === ';');
-    this.#splitter = new CsvRowSplitter(delimiter, (fields, line) => this.#onRow(fields, line));
+    this.#delimiter = delimiter;
+    this.#splitter = new CsvRowSplitter(delimiter, (fields, line) => this.#onRow(fields, line), (text, start, end, line) => this.#onPlainLine(text, start, end, line));
     this.#splitter.push(text);
   }
 
@@ -112,6 +118,37 @@ class LongCsvReader implements ExportReader {
     }
     series.noteUnit(layout.unit >= 0 ? fields[layout.unit].trim() : this.#cells.unit);
     series.add(timeMs, value);
+  }
+
+  /**
+   * Hot path for quote-free lines laid out as time first and value last: the identity fields in
+   * between are looked up as one substring and the value is parsed from char codes. Anything
+   * else (other layouts, wrong widths, bad cells) goes through the general row path.
+   */
+  #onPlainLine(text: string, start: number, end: number, line: number): void {
+    // No closures here: this runs once per row.
+    const layout = this.#layout;
+    if (layout === undefined || layout.time !== 0 || layout.value !== layout.fieldCount - 1 || layout.unit >= 0) { this.#onSlowLine(text, start, end, line); return; }
+    if (this.#bounds.length < layout.fieldCount + 8) this.#bounds = new Int32Array(layout.fieldCount * 2 + 8);
+    const bounds = this.#bounds;
+    if (findFieldBounds(text, start, end, this.#delimiter, bounds) !== layout.fieldCount) { this.#onSlowLine(text, start, end, line); return; }
+    const valueStart = bounds[layout.value];
+    const value = parseDecimalRange(text, valueStart, end, this.#cells.isDecimalComma ? 44 : 46);
+    if (Number.isNaN(value)) { this.#onSlowLine(text, start, end, line); return; }
+    const timeMs = this.#timeReader.readTimeMs(text.slice(start, bounds[1] - 1));
+    if (Number.isNaN(timeMs)) { this.#onSlowLine(text, start, end, line); return; }
+    const key = text.slice(bounds[1], valueStart - 1);
+    let series = this.#plainSeries.get(key);
+    if (series === undefined) {
+      series = this.#findSeries(splitPlainLine(text, start, end, this.#delimiter), layout, line);
+      if (series === undefined) return;
+      this.#plainSeries.set(key, series);
+    }
+    series.add(timeMs, value);
+  }
+
+  #onSlowLine(text: string, start: number, end: number, line: number): void {
+    this.#onRow(splitPlainLine(text, start, end, this.#delimiter), line);
   }
 
   #findSeries(fields: readonly string[], layout: LongLayout, line: number): SeriesAccumulator | undefined {

@@ -71,15 +71,17 @@ function readDigits(text: string, start: number, count: number): number {
  * Returns `timeMs: NaN` for text that is not a date-time or has out-of-range fields.
  */
 export function parseDateTime(text: string): ParsedDateTime {
-  const s = text.trim();
+  const s = text.charCodeAt(0) > 32 && text.charCodeAt(text.length - 1) > 32 ? text : text.trim();
   if (s.length < 10 || s.charCodeAt(4) !== 45 || s.charCodeAt(7) !== 45) return INVALID;
   const year = readDigits(s, 0, 4);
   const month = readDigits(s, 5, 2);
   const day = readDigits(s, 8, 2);
-  if (year < 0 || month < 1 || month > 12 || day < 1 || day > 31) return INVALID;
-  if (s.length === 10) return { timeMs: Date.UTC(year, month - 1, day), isNaive: true, isLeapSecond: false };
-  const sep = s[10];
-  if (sep !== 'T' && sep !== 't' && sep !== ' ') return INVALID;
+  // Reject 31 February and the like instead of letting Date.UTC roll them into the next month.
+  if (year < 0 || month < 1 || month > 12 || day < 1 || day > daysInMonth(year, month)) return INVALID;
+  const dayMs = computeDayMs(year, month, day);
+  if (s.length === 10) return { timeMs: dayMs, isNaive: true, isLeapSecond: false };
+  const sep = s.charCodeAt(10);
+  if (sep !== 84 && sep !== 116 && sep !== 32) return INVALID;
   const hour = readDigits(s, 11, 2);
   const minute = s.charCodeAt(13) === 58 ? readDigits(s, 14, 2) : -1;
   if (hour < 0 || hour > 23 || minute < 0 || minute > 59) return INVALID;
@@ -90,21 +92,43 @@ export function parseDateTime(text: string): ParsedDateTime {
     second = readDigits(s, pos + 1, 2);
     if (second < 0 || second > 60) return INVALID;
     pos += 3;
-    if (s[pos] === '.' || s[pos] === ',') {
+    const c = s.charCodeAt(pos);
+    if (c === 46 || c === 44) {
       let end = pos + 1;
-      while (end < s.length && s.charCodeAt(end) >= 48 && s.charCodeAt(end) <= 57) end++;
+      let scale = 100;
+      while (end < s.length) {
+        const d = s.charCodeAt(end) - 48;
+        if (d < 0 || d > 9) break;
+        fractionMs += d * scale;
+        scale /= 10;
+        end++;
+      }
       if (end === pos + 1) return INVALID;
-      fractionMs = Number('0.' + s.slice(pos + 1, end)) * 1000;
       pos = end;
     }
   }
   const offsetMs = readOffsetMs(s, pos);
   if (offsetMs === undefined) return INVALID;
-  const isLeapSecond = second === 60;
-  const base = Date.UTC(year, month - 1, day, hour, minute, second) + fractionMs;
-  // Date.UTC silently rolls 31 February over into March; reject such dates instead.
-  if (new Date(Date.UTC(year, month - 1, day)).getUTCDate() !== day) return INVALID;
-  return { timeMs: base - (offsetMs ?? 0), isNaive: offsetMs === null, isLeapSecond };
+  const timeMs = dayMs + ((hour * 60 + minute) * 60 + second) * 1000 + fractionMs - (offsetMs ?? 0);
+  return { timeMs, isNaive: offsetMs === null, isLeapSecond: second === 60 };
+}
+
+function daysInMonth(year: number, month: number): number {
+  if (month !== 2) return month === 4 || month === 6 || month === 9 || month === 11 ? 30 : 31;
+  return (year % 4 === 0 && year % 100 !== 0) || year % 400 === 0 ? 29 : 28;
+}
+
+// One-entry cache: consecutive rows of an export almost always fall on the same day.
+let cachedDayKey = -1;
+let cachedDayMs = 0;
+
+function computeDayMs(year: number, month: number, day: number): number {
+  const key = (year * 16 + month) * 32 + day;
+  if (key !== cachedDayKey) {
+    cachedDayKey = key;
+    cachedDayMs = Date.UTC(year, month - 1, day);
+  }
+  return cachedDayMs;
 }
 
 /** Offset in ms at `pos`; null when absent (naive); undefined when malformed. */
@@ -143,12 +167,18 @@ export class TimeCellReader {
 
   /** Epoch ms for one cell, or NaN when it is neither a date-time nor a number. */
   readTimeMs(cell: string): number {
-    const trimmed = cell.trim();
+    // Date-shaped cells ("2024-…") skip the Number() attempt, which would only give NaN.
+    if (cell.length >= 10 && cell.charCodeAt(4) === 45 && cell.charCodeAt(0) > 32) return this.#readDateTime(cell);
+    const trimmed = cell.charCodeAt(0) > 32 && cell.charCodeAt(cell.length - 1) > 32 ? cell : cell.trim();
     if (trimmed.length === 0) return NaN;
     // Number() accepts plain decimals and exponents; date-times always give NaN here.
     const numeric = Number(trimmed);
     if (!Number.isNaN(numeric)) return this.readEpoch(numeric);
-    const parsed = parseDateTime(trimmed);
+    return this.#readDateTime(trimmed);
+  }
+
+  #readDateTime(text: string): number {
+    const parsed = parseDateTime(text);
     if (Number.isNaN(parsed.timeMs)) return NaN;
     if (parsed.isNaive) this.#hasNaive = true; else this.#hasOffset = true;
     if (parsed.isLeapSecond) this.#hasLeap = true;

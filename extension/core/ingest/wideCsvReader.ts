@@ -1,4 +1,5 @@
-import { CsvRowSplitter, detectDelimiter } from './csvRowSplitter';
+import { CsvRowSplitter, detectDelimiter, findFieldBounds, splitPlainLine } from './csvRowSplitter';
+import { parseDecimalRange } from './parseDecimalRange';
 import { FirstLineBuffer, findFirstLine, type ExportReader } from './exportReader';
 import { FloatColumn, IssueCollector, formatSeriesId, inferKindFromName } from './seriesAccumulator';
 import { parseSeriesHeader } from './seriesNames';
@@ -38,6 +39,9 @@ class WideCsvReader implements ExportReader {
   #columns: WideColumn[] | undefined;
   #timeIndex = 0;
   #expectedFields = 0;
+  #delimiter = ',';
+  /** Reused field boundaries of the current line (no allocation per row). */
+  #bounds = new Int32Array(64);
 
   constructor(readonly file: string) {
     this.#issues = new IssueCollector(file);
@@ -52,7 +56,8 @@ class WideCsvReader implements ExportReader {
   #start(text: string): void {
     const delimiter = detectDelimiter(findFirstLine(text, true) ?? '');
     this.#cells = new ValueCellReader(delimiter === ';');
-    this.#splitter = new CsvRowSplitter(delimiter, (fields, line) => this.#onRow(fields, line));
+    this.#delimiter = delimiter;
+    this.#splitter = new CsvRowSplitter(delimiter, (fields, line) => this.#onRow(fields, line), (text, start, end, line) => this.#onPlainLine(text, start, end, line));
     this.#splitter.push(text);
   }
 
@@ -91,6 +96,30 @@ class WideCsvReader implements ExportReader {
     if (count < this.#expectedFields) this.#issues.warning(line, `expected ${this.#expectedFields} fields, got ${count}; missing cells read as gaps`);
     this.#times.push(timeMs);
     for (const column of this.#columns) this.#readCell(column, column.index < count ? fields[column.index] : '', line);
+  }
+
+  /** Hot path for quote-free lines: fields found in place, numbers parsed from char codes. */
+  #onPlainLine(text: string, start: number, end: number, line: number): void {
+    const columns = this.#columns;
+    if (columns === undefined) { this.#onRow(splitPlainLine(text, start, end, this.#delimiter), line); return; }
+    if (this.#bounds.length < this.#expectedFields + 8) this.#bounds = new Int32Array(this.#expectedFields * 2 + 8);
+    const bounds = this.#bounds;
+    let count = findFieldBounds(text, start, end, this.#delimiter, bounds);
+    if (count < 0) { this.#onRow(splitPlainLine(text, start, end, this.#delimiter), line); return; }
+    while (count > this.#expectedFields && isBlankRange(text, bounds[count - 1], bounds[count] - 1)) count--;
+    if (count !== this.#expectedFields) { this.#onRow(splitPlainLine(text, start, end, this.#delimiter), line); return; }
+    const timeMs = this.#timeReader.readTimeMs(text.slice(bounds[this.#timeIndex], bounds[this.#timeIndex + 1] - 1));
+    if (Number.isNaN(timeMs)) { this.#onRow(splitPlainLine(text, start, end, this.#delimiter), line); return; }
+    this.#times.push(timeMs);
+    const pointCode = this.#cells.isDecimalComma ? 44 : 46;
+    for (let c = 0; c < columns.length; c++) {
+      const column = columns[c];
+      const fieldStart = bounds[column.index];
+      const fieldEnd = bounds[column.index + 1] - 1;
+      const value = parseDecimalRange(text, fieldStart, fieldEnd, pointCode);
+      if (Number.isNaN(value)) this.#readCell(column, text.slice(fieldStart, fieldEnd), line);
+      else column.values.push(value);
+    }
   }
 
   #readCell(column: WideColumn, cell: string, line: number): void {
@@ -153,6 +182,11 @@ class WideCsvReader implements ExportReader {
     if (this.#cells.hasConvertedUnits) out.push('values written with units converted to base units (bytes, seconds)');
     return out;
   }
+}
+
+function isBlankRange(text: string, start: number, end: number): boolean {
+  for (let i = start; i < end; i++) if (text.charCodeAt(i) > 32) return false;
+  return true;
 }
 
 /** Cell text shortened for messages. */
