@@ -58,6 +58,7 @@ export interface RobustStats {
   readonly validCount: number;
 }
 
+let resampleScratch = new Float64Array(0);
 // Reused scratch buffers: encoding runs ~10^5 times per timeline, and typed-array allocation dominated it.
 let scratch = new Float64Array(1024);
 
@@ -128,10 +129,11 @@ function squash(z: number, clip: number): number {
 /**
  * Resample `values` (NaN = gap) to `count` points: bin means when shrinking, linear interpolation
  * when stretching. Remaining NaN points take the nearest valid point. Returns null when no value is valid.
+ * `out` (length `count`) may be passed to avoid an allocation; it is overwritten and returned.
  */
-export function resampleWindow(values: ArrayLike<number>, count: number): Float64Array | null {
+export function resampleWindow(values: ArrayLike<number>, count: number, out = new Float64Array(count)): Float64Array | null {
   const length = values.length;
-  const out = new Float64Array(count).fill(Number.NaN);
+  out.fill(Number.NaN);
   if (length >= count) {
     for (let i = 0; i < count; i++) {
       const start = Math.floor((i * length) / count);
@@ -187,7 +189,8 @@ export function encodeMetricRow(metric: MetricWindow, spec: WindowSpec, row: Flo
   let windowValid = 0;
   for (let i = 0; i < windowLength; i++) if (Number.isFinite(metric.window[i])) windowValid++;
   if (windowValid < Math.max(1, spec.minWindowValidFraction * windowLength)) return false;
-  const resampled = resampleWindow(metric.window, spec.sampleCount);
+  if (resampleScratch.length !== spec.sampleCount) resampleScratch = new Float64Array(spec.sampleCount);
+  const resampled = resampleWindow(metric.window, spec.sampleCount, resampleScratch);
   if (resampled === null) return false;
   const scale = Math.max(base.scale, spec.relativeScaleFloor * Math.abs(base.median), spec.absoluteScaleFloor);
   for (let i = 0; i < spec.sampleCount; i++) row[i] = squash((resampled[i] - base.median) / scale, spec.clip);
