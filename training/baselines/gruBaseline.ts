@@ -1,81 +1,70 @@
 /**
- * Per-metric recurrent baseline: one GRU (Cho et al. 2014, the reset gate applied to U·h as in the
- * common cuDNN/PyTorch variant) runs over each metric's window samples; its last state plus a
- * family embedding and a projection of the row's summary slots is mean-pooled over unmasked
- * metrics and classified.
+ * The GRU baseline of gruNetwork.ts rebuilt in tfjs from the same parameters. Too slow to train
+ * on the CPU backend, it serves as the independent reference (tfjs autodiff) that the hand-written
+ * forward pass and gradients are tested against.
  */
 import * as tf from '@tensorflow/tfjs-core';
-import { FAMILIES } from '../../extension/core/frame/types';
-import { applyDense, createDense, listDenseVariables, poolMaskedMean, type BatchTensors, type Dense } from './layers';
-import type { NodeSetModel, NodeSetModelSpec } from './nodeSetModel';
-import { drawGlorotUniform } from './seededRandom';
-
-interface Gate {
-  /** Input weight [1, H] (the input is one sample per step) and bias [H]. */
-  readonly input: Dense;
-  /** State weight [H, H]. */
-  readonly state: tf.Variable;
-}
-
-function createGate(size: number, random: () => number): Gate {
-  return {
-    input: createDense(1, size, random),
-    state: tf.variable(tf.tensor2d(drawGlorotUniform(size, size, random), [size, size])),
-  };
-}
-
-function applyGate(gate: Gate, x: tf.Tensor2D, h: tf.Tensor2D): tf.Tensor2D {
-  return tf.add(tf.add(tf.mul(x, gate.input.weight), gate.input.bias), tf.matMul(h, gate.state as tf.Tensor2D));
-}
+import { applyHead, lookUpFamilies, poolMaskedMean, type BatchTensors, type Dense } from './layers';
+import { getGruBlockShapes, GRU_BLOCKS, type GruBlock, type GruParameters } from './gruNetwork';
+import type { NodeSetModel } from './nodeSetModel';
 
 /**
- * Splits node rows [B,N,row] into a time-major sequence [W, B·N] and summary slots [B·N, S] in
- * plain JS: inputs need no gradient, and the CPU backend's strided slice is element-by-element slow.
+ * Splits node rows [B,N,row] into a time-major sequence [W, B·N, 2] (sample, 1) and summary slots
+ * [B·N, S] in plain JS: inputs need no gradient, and strided slices are slow on the CPU backend.
  */
-function splitRows(values: tf.Tensor3D, sequenceLength: number): { sequence: tf.Tensor2D; slots: tf.Tensor2D } {
+function splitRows(values: tf.Tensor3D, sequenceLength: number): { sequence: tf.Tensor3D; slots: tf.Tensor2D } {
   const [b, n, rowLength] = values.shape;
   const nodes = b * n;
   const slotCount = Math.max(1, rowLength - sequenceLength);
   const raw = values.dataSync();
-  const sequence = new Float32Array(sequenceLength * nodes);
+  const sequence = new Float32Array(sequenceLength * nodes * 2);
   const slots = new Float32Array(nodes * slotCount);
   for (let i = 0; i < nodes; i++) {
-    for (let t = 0; t < sequenceLength; t++) sequence[t * nodes + i] = raw[i * rowLength + t];
+    for (let t = 0; t < sequenceLength; t++) {
+      sequence[(t * nodes + i) * 2] = raw[i * rowLength + t];
+      sequence[(t * nodes + i) * 2 + 1] = 1;
+    }
     for (let s = 0; s < rowLength - sequenceLength; s++) slots[i * slotCount + s] = raw[i * rowLength + sequenceLength + s];
   }
-  return { sequence: tf.tensor2d(sequence, [sequenceLength, nodes]), slots: tf.tensor2d(slots, [nodes, slotCount]) };
+  return { sequence: tf.tensor3d(sequence, [sequenceLength, nodes, 2]), slots: tf.tensor2d(slots, [nodes, slotCount]) };
 }
 
-/** GRU baseline with hidden size spec.hiddenSize over the first spec.sequenceLength entries of each row. */
-export function createGruBaseline(spec: NodeSetModelSpec, random: () => number): NodeSetModel {
-  const size = spec.hiddenSize;
-  const [update, reset, candidate] = [0, 1, 2].map(() => createGate(size, random));
-  const slotWeights = createDense(Math.max(1, spec.windowLength - spec.sequenceLength), size, random);
-  const familyEmbedding = tf.variable(tf.tensor2d(drawGlorotUniform(FAMILIES.length, size, random), [FAMILIES.length, size]));
-  const head = [createDense(size, size, random), createDense(size, spec.classCount, random)];
+/** Returns tfjs variables holding a copy of each parameter block. */
+export function toGruVariables(p: GruParameters): Record<GruBlock, tf.Variable> {
+  const shapes = getGruBlockShapes(p.shape);
+  const out = {} as Record<GruBlock, tf.Variable>;
+  for (const block of GRU_BLOCKS) {
+    const [rows, cols] = shapes[block];
+    out[block] = tf.variable(tf.tensor2d(p.values.slice(p.offsets[block], p.offsets[block] + rows * cols), [rows, cols]));
+  }
+  return out;
+}
+
+/** A tfjs model computing exactly the network of gruNetwork.ts with the given variables. */
+export function createGruReference(p: GruParameters, vars: Record<GruBlock, tf.Variable>): NodeSetModel {
+  const size = p.shape.hiddenSize;
+  const w = p.shape.sequenceLength;
+  const gate = (input: GruBlock, bias: GruBlock): tf.Tensor2D => tf.concat([vars[input], vars[bias]], 0) as tf.Tensor2D;
+  const head: [Dense, Dense] = [{ weight: vars.head1, bias: vars.head1Bias }, { weight: vars.head2, bias: vars.head2Bias }];
   return {
     name: `GRU per metric (hidden ${size}, mean pooling)`,
-    variables: [
-      ...[update, reset, candidate].flatMap((g) => [g.input.weight, g.input.bias, g.state]),
-      ...listDenseVariables([slotWeights]), familyEmbedding, ...listDenseVariables(head),
-    ],
+    variables: GRU_BLOCKS.map((b) => vars[b]),
     computeLogits(input: BatchTensors): tf.Tensor2D {
-      const [b, n] = input.values.shape;
+      const { batchSize: b, nodeCount: n } = input;
       const nodes = b * n;
-      const { sequence, slots } = splitRows(input.values, spec.sequenceLength);
+      const { sequence, slots } = splitRows(input.values, w);
+      const [inZ, inR, inN] = [gate('inputZ', 'biasZ'), gate('inputR', 'biasR'), gate('inputN', 'biasN')];
       let h: tf.Tensor2D = tf.zeros([nodes, size]);
-      for (let t = 0; t < spec.sequenceLength; t++) {
-        const x: tf.Tensor2D = tf.reshape(tf.slice(sequence, [t, 0], [1, nodes]), [nodes, 1]);
-        const z = tf.sigmoid(applyGate(update, x, h));
-        const r = tf.sigmoid(applyGate(reset, x, h));
-        const proposal = tf.tanh(tf.add(tf.add(tf.mul(x, candidate.input.weight), candidate.input.bias),
-          tf.mul(r, tf.matMul(h, candidate.state as tf.Tensor2D))));
-        h = tf.add(tf.mul(tf.sub(1, z), proposal), tf.mul(z, h));
+      for (let t = 0; t < w; t++) {
+        const x: tf.Tensor2D = tf.reshape(tf.slice(sequence, [t, 0, 0], [1, nodes, 2]), [nodes, 2]);
+        const z = tf.sigmoid(tf.add(tf.matMul(x, inZ), tf.matMul(h, vars.stateZ as tf.Tensor2D)));
+        const r = tf.sigmoid(tf.add(tf.matMul(x, inR), tf.matMul(h, vars.stateR as tf.Tensor2D)));
+        const proposal = tf.tanh(tf.add(tf.matMul(x, inN), tf.mul(r, tf.matMul(h, vars.stateN as tf.Tensor2D))));
+        h = tf.add(proposal, tf.mul(z, tf.sub(h, proposal)));
       }
-      const family = tf.reshape(tf.gather(familyEmbedding, tf.reshape(input.families, [nodes])), [nodes, size]);
-      const nodeStates = tf.relu(tf.add(tf.add(h, family), applyDense(slotWeights, slots)));
-      const pooled = poolMaskedMean(tf.reshape(nodeStates, [b, n, size]), input.mask);
-      return applyDense(head[1], tf.relu(applyDense(head[0], pooled)));
+      const slotTerm = tf.add(tf.matMul(slots, vars.slots as tf.Tensor2D), tf.matMul(tf.ones([nodes, 1]) as tf.Tensor2D, vars.slotBias as tf.Tensor2D));
+      const nodeStates = tf.relu(tf.add(tf.add(h, lookUpFamilies(vars.family, input)), slotTerm));
+      return applyHead(head, poolMaskedMean(tf.reshape(nodeStates, [b, n, size]), input));
     },
   };
 }
