@@ -111,6 +111,15 @@ export function formatEntryId(nowMs: number, suffixHex: string): string {
   return `${stamp}-${suffixHex}`;
 }
 
+/**
+ * The model version recorded in entries: the spec's version plus the first 12 hex digits of the
+ * ONNX file's sha256, so a retrained model that forgot to bump its version still counts as new
+ * (embeddings of two different weight sets are not comparable).
+ */
+export function formatLibraryModelVersion(specVersion: string, modelSha256: string): string {
+  return `${specVersion}+${modelSha256.slice(0, 12)}`;
+}
+
 /** True when `label` is one of the bundled model's classes. */
 export function isBuiltInClassLabel(label: string): boolean {
   return (CLASSES as readonly string[]).includes(label);

@@ -19,9 +19,13 @@ export interface BlendOptions extends PrototypeOptions {
   readonly maxWeight: number;
 }
 
-/** Defaults calibrated by training/evaluateFewShot.ts (calibration split, not the reported one). */
+/**
+ * Defaults chosen by training/evaluateFewShot.ts on its calibration half for model 0.1.0 (l2
+ * geometry): the library may claim roughly the 1–2 % of known incidents nearest to its prototypes.
+ * They depend on the model's embedding; re-run `npm run evaluate:few-shot` after retraining.
+ */
 export const DEFAULT_BLEND_OPTIONS: BlendOptions = {
-  ...DEFAULT_PROTOTYPE_OPTIONS, acceptDistance: 0.2, softness: 0.02, maxWeight: 0.95,
+  ...DEFAULT_PROTOTYPE_OPTIONS, acceptDistance: 0.05, softness: 0.005, maxWeight: 0.95,
 };
 
 /** The blended verdict. */
