@@ -3,6 +3,7 @@ import { analyzeExport } from './node/analyze';
 import { AnalysisState } from './host/analysisState';
 import type { HostDeps } from './host/analysisTypes';
 import { registerCommands } from './host/commands';
+import { registerIncidentLibrary } from './host/libraryWiring';
 import { registerMetricsEditor } from './host/metricsEditorProvider';
 import { registerStatusBar } from './host/statusBar';
 
@@ -14,6 +15,7 @@ export function activate(context: vscode.ExtensionContext): void {
   context.subscriptions.push(registerMetricsEditor(deps, state));
   context.subscriptions.push(registerCommands(deps, state));
   context.subscriptions.push(registerStatusBar(state));
+  context.subscriptions.push(registerIncidentLibrary(context, deps, state));
 }
 
 export function deactivate(): void {

@@ -1,5 +1,5 @@
 import { format } from 'node:util';
-import Mocha from 'mocha';
+import type MochaType from 'mocha';
 
 /**
  * Runs the given test modules with mocha inside the extension host. Each module is `require`d
@@ -7,13 +7,17 @@ import Mocha from 'mocha';
  * modules are bundled, so they are passed as loader functions instead of file paths.
  */
 export function runMochaSuites(loaders: readonly (() => unknown)[]): Promise<void> {
+  // The extension host forwards console arguments unformatted and mocha's reporters keep the
+  // console.log they find when first loaded, so format and tag lines before mocha is required;
+  // the harness prints the tagged lines.
+  const log = console.log;
+  console.log = (...args: unknown[]) => log(`[editor-suite] ${format(...args)}`);
+  // eslint-disable-next-line @typescript-eslint/no-require-imports
+  const Mocha = require('mocha') as typeof MochaType;
   const mocha = new Mocha({ ui: 'bdd', color: false, timeout: 120_000, reporter: 'spec' });
   mocha.suite.emit('pre-require', globalThis, 'editor-suite', mocha);
   for (const load of loaders) load();
-  // The extension host forwards console arguments unformatted; format them so the report reads well.
-  const log = console.log;
-  console.log = (...args: unknown[]) => log(`[editor-suite] ${format(...args)}`);
   return new Promise<void>((resolve, reject) => {
     mocha.run((failures) => (failures > 0 ? reject(new Error(`${failures} editor test(s) failed`)) : resolve()));
-  }).finally(() => { console.log = log; });
+  });
 }

@@ -5,7 +5,7 @@ import type { Finding } from '../../../extension/core/report/types';
 import type { InsertOutcome } from '../../../extension/host/postmortemWriter';
 import { countOccurrences, EXTENSION_ID, FINDING_START_MARK, getFixtureUris } from './fixturePaths';
 
-const COMMAND_IDS = ['metricTriage.classifyExport', 'metricTriage.openViewer', 'metricTriage.insertFindings'];
+const COMMAND_IDS = ['metricTriage.classifyExport', 'metricTriage.openViewer', 'metricTriage.insertFindings', 'metricTriage.labelWindow'];
 
 async function readDisk(uri: vscode.Uri): Promise<string> {
   return new TextDecoder().decode(await vscode.workspace.fs.readFile(uri));
