@@ -25,7 +25,9 @@ export class FrameTooLargeError extends Error {
  *   from the earliest to the latest sample. With no or one distinct time, the grid has that many
  *   points and `stepMs` is 0.
  * - Unsorted samples are sorted; duplicate timestamps keep the last value written (counted in
- *   `duplicateCount`, warned).
+ *   `duplicateCount` once per distinct time array — a duplicated row of a wide CSV counts once —
+ *   and warned). Samples with a non-finite time are dropped.
+ * - Decimation past `maxGridPoints` keeps the last sample per widened step and warns.
  * - Counters (kind 'counter') become per-second rates with resets handled; 'delta' series become
  *   rates over their interval; both set `isConvertedToRate`. The first point of a rate is a gap.
  * - Gaps stay NaN (one missing grid point between two samples is forward-filled); `gapFraction`

@@ -37,9 +37,15 @@ export class FloatColumn {
     return this.#length === 0 ? NaN : this.#data[this.#length - 1];
   }
 
-  /** A right-sized copy of the values; the column can be dropped afterwards. */
+  /**
+   * A right-sized copy of the values. The internal buffer is released at once (the column is empty
+   * afterwards), so converting many columns in turn peaks at one extra column, not twice them all.
+   */
   toArray(): Float64Array {
-    return this.#data.slice(0, this.#length);
+    const out = this.#data.length === this.#length ? this.#data : this.#data.slice(0, this.#length);
+    this.#data = new Float64Array(4);
+    this.#length = 0;
+    return out;
   }
 }
 

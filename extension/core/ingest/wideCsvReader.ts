@@ -138,7 +138,9 @@ class WideCsvReader implements ExportReader {
   }
 
   #readHeader(fields: readonly string[], line: number): void {
-    const names = fields.map((f) => f.trim());
+    // RFC 4180 makes the header optional: a first row of a time plus numbers is data, not names.
+    const isHeaderless = fields.length > 1 && isDataRow(fields);
+    const names = isHeaderless ? fields.map((_, i) => (i === 0 ? 'time' : `column_${i + 1}`)) : fields.map((f) => f.trim());
     const named = names.findIndex((n) => TIME_COLUMN_NAMES.has(n.toLowerCase()));
     this.#timeIndex = named >= 0 ? named : 0;
     let count = names.length;
@@ -160,6 +162,10 @@ class WideCsvReader implements ExportReader {
       this.#columns.push({ index, name: parsed.name, labels, unit: parsed.unit, hasMixedUnits: false, values: new FloatColumn(1024) });
     }
     if (this.#columns.length === 0) this.#issues.error(line, `expected a time column and at least one series column, got ${count} column(s)`);
+    if (isHeaderless) {
+      this.#issues.warning(line, 'expected a header line, got data; columns named column_2, column_3, …');
+      this.#onRow(fields, line);
+    }
   }
 
   #buildSeries(): RawSeries[] {
@@ -182,6 +188,19 @@ class WideCsvReader implements ExportReader {
     if (this.#cells.hasConvertedUnits) out.push('values written with units converted to base units (bytes, seconds)');
     return out;
   }
+}
+
+/** True when the first cell reads as a time and every other cell as a number or a gap. */
+function isDataRow(fields: readonly string[]): boolean {
+  if (Number.isNaN(new TimeCellReader().readTimeMs(fields[0]))) return false;
+  const cells = new ValueCellReader(false);
+  let numbers = 0;
+  for (let i = 1; i < fields.length; i++) {
+    cells.read(fields[i]);
+    if (cells.status === CellStatus.Invalid) return false;
+    if (cells.status === CellStatus.Ok) numbers++;
+  }
+  return numbers > 0;
 }
 
 function isBlankRange(text: string, start: number, end: number): boolean {

@@ -112,6 +112,13 @@ describe('wide CSV reader', () => {
     }
   });
 
+  it('reads a file without a header line (RFC 4180 §2 rule 3: the header is optional) and says so', () => {
+    const result = readExportText('2024-01-01T00:00:00Z,1,2\n2024-01-01T00:01:00Z,3,4\n', 'nohead.csv', 'wide-csv');
+    assert.deepEqual(result.series.map((s) => s.name), ['column_2', 'column_3']);
+    assert.deepEqual([...byName(result, 'column_2').values], [1, 3]);
+    assert.match(result.issues[0].message, /expected a header line, got data/);
+  });
+
   describe('edge cases', () => {
     it('empty file: an error saying a header was expected', () => {
       const result = readExportText('', 'empty.csv', 'wide-csv');
