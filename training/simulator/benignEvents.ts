@@ -57,7 +57,7 @@ export function applyBenignEvent(d: Drivers, kind: BenignKind, at: number, rng: 
     case 'levelShift': {
       // Permanent and modest: a config change, a new cache size, a rebalanced shard.
       const which = rng.int(0, 3);
-      const size = rng.uniform(0.05, 0.25) * (rng.chance(0.5) ? 1 : -1);
+      const size = rng.uniform(0.05, 0.4) * (rng.chance(0.5) ? 1 : -1);
       for (let i = at; i < n; i += 1) {
         if (which === 0) d.trafficScale[i] = (d.trafficScale[i] as number) * (1 + size);
         else if (which === 1) d.memExtra[i] = (d.memExtra[i] as number) + size * 0.3;
@@ -70,7 +70,7 @@ export function applyBenignEvent(d: Drivers, kind: BenignKind, at: number, rng: 
 }
 
 /** Benign kinds for quiet windows, weighted toward latency noise (the commonest false alarm). */
-export const QUIET_WINDOW_KINDS: readonly BenignKind[] = ['latencyBurst', 'latencyBurst', 'latencyDrift', 'latencyDrift', 'levelShift', 'levelShift', 'cron', 'deploy', 'trafficBurst'];
+export const QUIET_WINDOW_KINDS: readonly BenignKind[] = ['latencyBurst', 'latencyBurst', 'latencyDrift', 'latencyDrift', 'levelShift', 'levelShift', 'levelShift', 'levelShift', 'cron', 'deploy', 'trafficBurst'];
 
 /** Sprinkles benign events over the grid at about `perStep` events per step. */
 export function drawBenignEvents(d: Drivers, rng: Random, perStep: number): void {

@@ -24,7 +24,7 @@ const PARAMS: ServiceParams = {
   diskBase: 0.03, diskPerLoad: 0.04, serverLatencyS: 0.085, dependencyLatencyS: 0.02,
   dependencyShare: 0.3, persistenceShare: 0.2, queueSensitivity: 2.5, errorBaseRatio: 0.002,
   poolSize: 20, poolBaseRatio: 0.25, bytesPerRequest: 9000, retransPerRequest: 0.004,
-  tailSigma: 0.2, burstProbability: 0.004, timeoutSensitivity: 0.0015, lossErrorShare: 0,
+  tailSigma: 0.2, burstProbability: 0.004, slowDriftSigma: 0.05, timeoutSensitivity: 0.0015, lossErrorShare: 0,
 };
 
 type Row = readonly [roleKey: string, name: string, labels: Record<string, string>, unit: string | undefined, kind: 'gauge' | 'counter', factor: number, tailWeight: number, isInteger?: boolean];
@@ -67,7 +67,7 @@ export function buildDemoSystem(): SimSystem {
     const form: NameForm = { name, labels, unit, kind, scale: factor, isInteger };
     return {
       id: formatSeriesId(name, labels), name, labels, unit, kind, trueFamily: findRole(roleKey).trueFamily, role: findRole(roleKey), form,
-      factor, tailWeight, noiseSigma: tailWeight > 0 ? 0.06 : 0.03, gapProbability: 0, resetProbability: 0,
+      factor, tailWeight, noiseSigma: tailWeight > 0 ? 0.06 : 0.03, gapProbability: 0, resetProbability: 0, significantDigits: 0,
     };
   });
   const spec: SystemSpec = { id: 'demo-basket-api', seed: 20260314, service: 'basket-api', dependency: 'pantry-db', namingStyle: 'snake_total', stepMs: DEMO_STEP_MS, params: PARAMS, series };

@@ -37,6 +37,8 @@ export interface ServiceParams {
   readonly tailSigma: number;
   /** Per-step probability of a harmless heavy-tailed burst. */
   readonly burstProbability: number;
+  /** Slow wander over hours (cache churn, tenant mix, neighbours), log scale; 0 = none. */
+  readonly slowDriftSigma: number;
   /** Error ratio added per unit of latency beyond 8× normal (0 = timeouts never surface). */
   readonly timeoutSensitivity: number;
   /** Error ratio per unit of packet-loss fraction (most clients retry silently). */
@@ -92,11 +94,12 @@ export function drawBaseTraffic(p: ServiceParams, rng: Random, timesMs: Float64A
   // Noise memory of about 10 minutes whatever the step, so 1 s and 5 min grids both look real.
   const phi = Math.exp(-stepMs / 600_000);
   const ar = drawAr1(rng, n, Math.min(phi, 0.999), p.trafficNoiseSigma);
+  const slow = drawAr1(rng, n, Math.min(0.9995, Math.exp(-stepMs / 14_400_000)), p.slowDriftSigma);
   const out = new Float64Array(n);
   for (let i = 0; i < n; i += 1) {
     const angle = (2 * Math.PI * (timesMs[i] as number)) / DAY_MS + p.dailyPhaseRad;
     const cycle = 1 + p.dailyAmplitude * Math.sin(angle) + 0.3 * p.dailyAmplitude * Math.sin(2 * angle + 1);
-    out[i] = p.requestRatePerS * Math.max(0.05, cycle) * Math.exp(ar[i] as number);
+    out[i] = p.requestRatePerS * Math.max(0.05, cycle) * Math.exp((ar[i] as number) + (slow[i] as number));
   }
   return out;
 }
@@ -115,6 +118,8 @@ export function deriveObservables(p: ServiceParams, d: Drivers, baseTraffic: Flo
   const cpuNoise = drawAr1(rng, n, phi, p.cpuNoiseSigma);
   const memNoise = drawAr1(rng, n, Math.min(0.999, Math.exp(-stepMs / 1_800_000)), p.memNoiseSigma);
   const diskNoise = drawAr1(rng, n, phi, 0.15);
+  // Slow wander of per-request cost, independent of traffic: long baselines are not flat.
+  const slow = drawAr1(rng, n, Math.min(0.9995, Math.exp(-stepMs / 14_400_000)), p.slowDriftSigma);
   const stepS = stepMs / 1000;
   let uptimeS = rng.uniform(3600, 40 * 86400);
   let restarts = rng.int(0, 6);
@@ -124,7 +129,7 @@ export function deriveObservables(p: ServiceParams, d: Drivers, baseTraffic: Flo
     const mem = clamp(p.memBaseRatio * Math.exp(memNoise[i] as number) + (d.memExtra[i] as number) + (d.memLeak[i] as number), 0.02, 0.995);
     const gcPressure = Math.max(0, mem - 0.7) / 0.3;
     const steal = clamp((d.steal[i] as number) + 0.004 * Math.abs(rng.normal()), 0, 0.9);
-    const demand = Math.max(0.003, ((p.cpuBase + p.cpuPerLoad * loadRatio) * Math.exp(cpuNoise[i] as number) + 0.25 * gcPressure * gcPressure) * (d.cpuScale[i] as number) + (d.cpuExtra[i] as number));
+    const demand = Math.max(0.003, ((p.cpuBase + p.cpuPerLoad * loadRatio) * Math.exp((cpuNoise[i] as number) + (slow[i] as number)) + 0.25 * gcPressure * gcPressure) * (d.cpuScale[i] as number) + (d.cpuExtra[i] as number));
     const capacity = 1 - steal;
     const cpu = Math.min(demand, capacity * (0.97 + 0.025 * rng.next()));
     const rho = demand / capacity;
@@ -139,7 +144,7 @@ export function deriveObservables(p: ServiceParams, d: Drivers, baseTraffic: Flo
     const poolWait = overflow > 0 ? dependency * overflow * 2 : 0.0005 * rng.next();
     const client = dependency + poolWait;
     const ownWork = p.serverLatencyS * (1 - p.dependencyShare) * cpuFactor * (1 + p.persistenceShare * (diskFactor - 1) * 0.3) * (1 + 2 * steal);
-    const server = (ownWork + p.dependencyShare * client / Math.max(1e-9, p.dependencyLatencyS) * p.serverLatencyS) * (d.latencyScale[i] as number);
+    const server = (ownWork + p.dependencyShare * client / Math.max(1e-9, p.dependencyLatencyS) * p.serverLatencyS) * (d.latencyScale[i] as number) * Math.exp(0.7 * (slow[i] as number));
     // Timeouts only once requests run far past their usual time (and only in some systems).
     const timeoutErrors = Math.min(0.5, p.timeoutSensitivity * Math.max(0, server / p.serverLatencyS - 8) + 0.3 * p.timeoutSensitivity * 10 * Math.min(1, overflow));
     const errorRatio = clamp(p.errorBaseRatio * Math.exp(0.4 * rng.normal()) + (d.errorExtra[i] as number) + timeoutErrors + p.lossErrorShare * (d.lossFraction[i] as number), 0, 1);

@@ -22,6 +22,15 @@ export interface RenderRequest {
 
 const RATIO_SOURCES = new Set(['cpu', 'steal', 'iowait', 'idle', 'throttle', 'mem', 'memAvailable', 'diskBusy', 'errorRatio', 'successRatio', 'poolUse']);
 
+/** Rounds to `digits` significant digits of the series' typical level (one quantum for all steps). */
+function quantise(values: Float64Array, digits: number): void {
+  const sorted = Float64Array.from(values).sort();
+  const level = Math.abs(sorted[sorted.length >> 1] as number);
+  if (!(level > 0)) return;
+  const quantum = 10 ** (Math.floor(Math.log10(level)) - digits + 1);
+  for (let i = 0; i < values.length; i += 1) values[i] = Math.round((values[i] as number) / quantum) * quantum;
+}
+
 function renderValues(s: SeriesSpec, o: Observables, rng: Random, stepMs: number, burstProbability: number, shared: Float64Array): Float64Array {
   const n = o.traffic.length;
   const out = new Float64Array(n);
@@ -106,6 +115,7 @@ export function renderSystem(spec: SystemSpec, request: RenderRequest, rng: Rand
       sharedNoise.set(s.role.key, shared);
     }
     const rendered = renderValues(s, o, rng, spec.stepMs, spec.params.burstProbability, shared);
+    if (s.kind === 'gauge' && s.significantDigits > 0) quantise(rendered, s.significantDigits);
     const values = s.kind === 'counter' ? accumulate(s, rendered, o, rng, spec.stepMs) : rendered;
     punchGaps(values, s.gapProbability, rng);
     return { name: s.name, labels: s.labels, unit: s.unit, kind: s.kind, trueFamily: s.trueFamily, role: s.role.key, values };

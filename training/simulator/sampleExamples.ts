@@ -129,7 +129,7 @@ export function sampleOneExample(spec: SystemSpec, label: SimClass, rng: Random,
   const startMs = BASE_TIME_MS + Math.floor(rng.uniform(0, 300 * 86_400_000) / spec.stepMs) * spec.stepMs;
   const system = renderSystem(spec, {
     lengthSteps: layout.lengthSteps, startMs, faults: layout.fault ? [layout.fault] : [],
-    benignPerStep: rng.uniform(0, 1 / 150), benignEvents,
+    benignPerStep: rng.uniform(0, 1 / 100), benignEvents,
   }, rng);
   const keep = chooseKept(spec, label, rng);
   const metrics: MetricWindow[] = [];

@@ -33,6 +33,8 @@ export interface SeriesSpec {
   readonly noiseSigma: number;
   readonly gapProbability: number;
   readonly resetProbability: number;
+  /** Significant digits gauges are rounded to (exports often keep few); 0 = full precision. */
+  readonly significantDigits: number;
 }
 
 export interface SystemSpec {
@@ -74,6 +76,7 @@ function drawParams(rng: Random): ServiceParams {
     retransPerRequest: rng.logUniform(0.001, 0.05),
     tailSigma: rng.uniform(0.05, 0.6),
     burstProbability: rng.uniform(0, 0.02),
+    slowDriftSigma: rng.uniform(0, 0.3),
     timeoutSensitivity: rng.chance(0.5) ? 0 : rng.uniform(0.001, 0.01),
     lossErrorShare: rng.chance(0.5) ? 0 : rng.uniform(0.1, 1),
   };
@@ -118,6 +121,7 @@ function expandRole(role: RoleDef, style: NamingStyle, vars: Record<string, stri
       id: formatSeriesId(finalName, labels), name: finalName, labels, unit: form.unit, kind: form.kind,
       trueFamily: role.trueFamily, role, form, factor: copy.factor * unitScale, tailWeight: copy.tailWeight,
       noiseSigma: noiseSigma * (1 + copy.tailWeight), gapProbability: 0, resetProbability: form.kind === 'counter' ? rng.uniform(0, 0.002) : 0,
+      significantDigits: form.kind === 'gauge' && rng.chance(0.35) ? rng.pick([1, 2, 2, 3]) : 0,
     };
   });
 }
