@@ -6,13 +6,13 @@ import type { LibraryTimeSpan } from '../core/model/libraryTypes';
 import { checkLibraryLabel } from '../core/model/libraryDocument';
 
 export type LibraryCommand =
-  | { readonly kind: 'add'; readonly exportFile: string; readonly label: string; readonly window: LibraryTimeSpan; readonly baseline?: LibraryTimeSpan; readonly library?: string; readonly postmortem?: string }
+  | { readonly kind: 'add'; readonly exportFile: string; readonly label: string; readonly window: LibraryTimeSpan; readonly baseline?: LibraryTimeSpan; readonly library?: string; readonly postmortem?: string; readonly modelDir?: string }
   | { readonly kind: 'list'; readonly library?: string; readonly isJson: boolean }
   | { readonly kind: 'rm'; readonly ids: readonly string[]; readonly library?: string }
   | { readonly kind: 'help' };
 
 export const LIBRARY_USAGE = [
-  'usage: metric-triage library add FILE --label LABEL --window START/END [--baseline START/END] [--postmortem PATH] [--library PATH]',
+  'usage: metric-triage library add FILE --label LABEL --window START/END [--baseline START/END] [--postmortem PATH] [--library PATH] [--model DIR]',
   '       metric-triage library list [--json] [--library PATH]',
   '       metric-triage library rm ID... [--library PATH]',
   'times: RFC 3339 with a zone (2026-11-04T14:03:00Z) or epoch milliseconds; both ends inclusive.',
@@ -20,7 +20,7 @@ export const LIBRARY_USAGE = [
 ].join('\n');
 
 const FLAGS: Readonly<Record<string, readonly string[]>> = {
-  add: ['--label', '--window', '--baseline', '--library', '--postmortem'],
+  add: ['--label', '--window', '--baseline', '--library', '--postmortem', '--model'],
   list: ['--library'],
   rm: ['--library'],
 };
@@ -66,7 +66,9 @@ function parseAdd(positional: readonly string[], flags: ReadonlyMap<string, stri
   const baseline = baselineText === undefined ? undefined : parseTimeSpan(baselineText);
   if (baseline !== undefined && 'error' in baseline) return { error: `library add: --baseline: ${baseline.error}` };
   const postmortem = flags.get('--postmortem');
+  const modelDir = flags.get('--model');
   return {
+    ...(modelDir !== undefined ? { modelDir } : {}),
     kind: 'add', exportFile: positional[0], label, window, ...(baseline !== undefined ? { baseline } : {}),
     ...withLibrary, ...(postmortem !== undefined ? { postmortem } : {}),
   };

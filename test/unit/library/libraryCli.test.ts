@@ -67,4 +67,25 @@ describe('library CLI commands', () => {
     assert.match(err, /lib\.json: \$\.entries\[0\]\.id: expected a non-empty string/);
     assert.equal(await runLibrary(['add'], io()), 2);
   });
+
+  it('adds a labelled window of a real export with the bundled model, then lists it (NAB ec2_cpu_utilization_24ae8d, MIT)', async () => {
+    const fixture = join(__dirname, '../../fixtures/nab-cloud/series/realAWSCloudwatch__ec2_cpu_utilization_24ae8d.csv');
+    const code = await runLibrary(['add', fixture, '--label', 'cpu_spike_job', '--window', '2014-02-26T21:40:00Z/2014-02-26T22:30:00Z', '--postmortem', 'postmortems/2014-02-26.md'], io());
+    assert.equal(code, 0, err);
+    const text = readFileSync(join(dir, '.metric-triage', 'incident-library.json'), 'utf8');
+    const document = JSON.parse(text) as { entries: { label: string; embedding: number[]; exportSha256: string; window: { startMs: number } }[] };
+    assert.equal(document.entries[0].label, 'cpu_spike_job');
+    assert.equal(document.entries[0].embedding.length, 32);
+    assert.equal(document.entries[0].window.startMs, Date.UTC(2014, 1, 26, 21, 40));
+    assert.match(document.entries[0].exportSha256, /^[0-9a-f]{64}$/);
+    out = '';
+    assert.equal(await runLibrary(['list'], io()), 0);
+    assert.match(out, /cpu_spike_job \(own label\).*postmortems\/2014-02-26\.md/);
+  });
+
+  it('refuses a window outside the export, naming the span the export covers', async () => {
+    const fixture = join(__dirname, '../../fixtures/nab-cloud/series/realAWSCloudwatch__ec2_cpu_utilization_24ae8d.csv');
+    assert.equal(await runLibrary(['add', fixture, '--label', 'x', '--window', '2015-01-01T00:00:00Z/2015-01-02T00:00:00Z'], io()), 1);
+    assert.match(err, /covers 2014-02-14T14:30:00\.000Z to 2014-02-28T14:25:00\.000Z/);
+  });
 });
