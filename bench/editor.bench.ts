@@ -17,6 +17,7 @@ interface FirstPaintRecord {
   readonly seriesCount: number;
   readonly pointCount: number;
   readonly measuredAt: string;
+  readonly loadAverage1m?: number;
 }
 
 function makeFrame(seriesCount: number, pointCount: number): MetricFrame {
@@ -34,7 +35,7 @@ export async function run(): Promise<BenchReport> {
   if (existsSync(file)) {
     const record = JSON.parse(readFileSync(file, 'utf8')) as FirstPaintRecord;
     const ageHours = (Date.now() - statSync(file).mtimeMs) / 3_600_000;
-    const note = `${record.seriesCount}×${record.pointCount} export, measured ${record.measuredAt} (${ageHours.toFixed(1)} h ago) by npm run test:editor`;
+    const note = `${record.seriesCount}×${record.pointCount} export, measured ${record.measuredAt} (${ageHours.toFixed(1)} h ago) by npm run test:editor, load average ${record.loadAverage1m?.toFixed(1) ?? 'n/a'}`;
     lines.push({ name: 'viewer first paint after init (real editor)', value: record.initToFirstPaintMs, unit: 'ms', target: '≤ 1000 ms', note });
     lines.push({ name: 'viewer first paint after page start (real editor)', value: record.pageToFirstPaintMs, unit: 'ms', note });
   } else {

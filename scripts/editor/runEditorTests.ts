@@ -55,7 +55,10 @@ async function runHostSuite(name: string, suiteFile: string, isTrustEnabled: boo
     const payload = JSON.stringify([['extensionDevelopmentPath', remote(REPO_DIR)], ['extensionTestsPath', remote(join(OUT_DIR, suiteFile))]]);
     await page.goto(`${server.baseUrl}/?folder=${encodeURIComponent(workspace)}&payload=${encodeURIComponent(payload)}`);
     const timeoutMs = Number(process.env.TEST_TIMEOUT_MS ?? 240_000);
-    const code = await Promise.race([exitCode, new Promise<number>((resolve) => setTimeout(() => { log(`${name}: timed out after ${timeoutMs} ms`); resolve(1); }, timeoutMs))]);
+    let timer: NodeJS.Timeout | undefined;
+    const timedOut = new Promise<number>((resolve) => { timer = setTimeout(() => { log(`${name}: timed out after ${timeoutMs} ms`); resolve(1); }, timeoutMs); });
+    const code = await Promise.race([exitCode, timedOut]);
+    clearTimeout(timer);
     if (code !== 0) await page.screenshot({ path: join(ARTIFACTS_DIR, `host-${name}-failure.png`) }).catch(() => undefined);
     log(`${name}: exit code ${code}${blocked.length ? `; blocked non-loopback requests: ${blocked.length}` : ''}`);
     if (code !== 0 && process.env.VERBOSE) process.stdout.write(server.log());

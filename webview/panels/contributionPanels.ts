@@ -2,6 +2,8 @@ import type { ContributionView, WindowRangeView } from '../../extension/protocol
 import type { ChartRegistry } from '../charts/chartRegistry';
 import { el } from '../dom';
 
+const INITIAL_PANEL_COUNT = 12;
+
 /** Shapley bar: the value as a bar from a centre line, the 95% CI as a whisker; widths via CSSOM. */
 function renderShapleyBar(panel: ContributionView, maxAbs: number): HTMLElement {
   const scale = (v: number): number => (Math.abs(v) / Math.max(1e-12, maxAbs)) * 50;
@@ -19,8 +21,16 @@ function renderShapleyBar(panel: ContributionView, maxAbs: number): HTMLElement 
  * One panel per metric in Shapley order: its chart zoomed on the windows, before → during
  * medians, effect size in words and the Shapley bar with CI.
  */
-export function renderContributionPanels(root: HTMLElement, panels: readonly ContributionView[], windows: { incident: WindowRangeView; baseline: WindowRangeView }, charts: ChartRegistry): void {
+export function renderContributionPanels(
+  root: HTMLElement,
+  allPanels: readonly ContributionView[],
+  windows: { incident: WindowRangeView; baseline: WindowRangeView },
+  charts: ChartRegistry,
+  isShowingAll = false,
+): void {
   charts.removeWithin(root);
+  // The strongest few carry the verdict; the rest stay one click away (and in the table view).
+  const panels = isShowingAll ? allPanels : allPanels.slice(0, INITIAL_PANEL_COUNT);
   const maxAbs = Math.max(...panels.map((p) => Math.abs(p.shapley) + p.shapleyCi95), 1e-9);
   const list = el('ol', { className: 'contribution-list' });
   for (const panel of panels) {
@@ -44,5 +54,7 @@ export function renderContributionPanels(root: HTMLElement, panels: readonly Con
     ]));
     charts.add(canvas, { label: panel.name, timesMs: panel.timesMs, valuesY: panel.valuesY, fixedViewMs, showTimeTicks: true });
   }
-  root.replaceChildren(el('h2', { className: 'section-title', text: `What carries the verdict — ${panels.length} metrics by Shapley value` }), list);
+  const more = allPanels.length > panels.length ? el('button', { className: 'show-all', text: `Show all ${allPanels.length} metrics` }) : null;
+  more?.addEventListener('click', () => renderContributionPanels(root, allPanels, windows, charts, true));
+  root.replaceChildren(el('h2', { className: 'section-title', text: `What carries the verdict — ${allPanels.length} metrics by Shapley value` }), list, ...(more ? [more] : []));
 }

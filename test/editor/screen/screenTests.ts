@@ -5,6 +5,7 @@
  */
 import assert from 'node:assert/strict';
 import { mkdirSync, writeFileSync } from 'node:fs';
+import { loadavg } from 'node:os';
 import { join } from 'node:path';
 import type { FrameLocator, Page } from 'playwright-core';
 
@@ -107,6 +108,8 @@ export async function runScreenTests(input: ScreenTestInput): Promise<{ readonly
     log(`100×10,000 export: first paint ${initToFirstPaintMs} ms after init, ${pageToFirstPaintMs} ms after page start`);
     writeFileSync(join(artifactsDir, 'editor-first-paint.json'), JSON.stringify({
       initToFirstPaintMs, pageToFirstPaintMs, seriesCount: 100, pointCount: 10_000, measuredAt: new Date().toISOString(),
+      // The machine is shared: the 1-minute load average says how busy it was during the measurement.
+      loadAverage1m: loadavg()[0],
     }, null, 2));
     return { initToFirstPaintMs, pageToFirstPaintMs };
   } catch (error) {

@@ -86,6 +86,29 @@ describe('Metric Triage in a real editor (trusted workspace)', () => {
     assert.equal(second.status, 'replaced', JSON.stringify(second));
     assert.equal(countOccurrences(doc.getText(), FINDING_START_MARK), 1);
     assert.equal(doc.getText(), afterFirst);
-    await vscode.commands.executeCommand('workbench.action.revertAndCloseActiveEditor');
+  });
+
+  it('writes the SVG chart beside the postmortem but never over a file it did not write', async () => {
+    assert.ok(finding);
+    const svgUri = vscode.Uri.joinPath(postmortemUri, '..', `2026-01-14-basket-checkout-slow-${finding.id}.svg`);
+    const config = vscode.workspace.getConfiguration('metricTriage', postmortemUri);
+    await config.update('chartStyle', 'svg', vscode.ConfigurationTarget.Workspace);
+    try {
+      const userText = '<svg xmlns="http://www.w3.org/2000/svg"><!-- drawn by a person --></svg>';
+      await vscode.workspace.fs.writeFile(svgUri, new TextEncoder().encode(userText));
+      const refused = await vscode.commands.executeCommand<InsertOutcome>('metricTriage.insertFindings', { target: postmortemUri });
+      assert.equal(refused.status, 'replaced');
+      assert.equal(await readDisk(svgUri), userText, 'the user file is left alone');
+      if (refused.status === 'replaced') assert.ok(!refused.block.includes('.svg)'), 'no link to a chart that was not written');
+      await vscode.workspace.fs.delete(svgUri);
+      const written = await vscode.commands.executeCommand<InsertOutcome>('metricTriage.insertFindings', { target: postmortemUri });
+      assert.equal(written.status, 'replaced');
+      const svg = await readDisk(svgUri);
+      assert.ok(svg.startsWith('<svg xmlns="http://www.w3.org/2000/svg"') && svg.includes('written by Metric Triage'));
+      if (written.status === 'replaced') assert.ok(written.block.includes(`](./${svgUri.path.split('/').pop()})`), 'block links the chart');
+    } finally {
+      await config.update('chartStyle', undefined, vscode.ConfigurationTarget.Workspace);
+      await vscode.commands.executeCommand('workbench.action.revertAndCloseActiveEditor');
+    }
   });
 });
