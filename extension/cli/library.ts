@@ -9,6 +9,7 @@ import { applyLibraryChange } from '../core/model/librarySerialize';
 import type { LibraryEntry } from '../core/model/libraryTypes';
 import { DEFAULT_LIBRARY_PATH, LibraryFileError, readLibraryFile, updateLibraryFile } from '../node/libraryStore';
 import { LIBRARY_USAGE, parseLibraryArgs, type LibraryCommand } from './libraryArgs';
+import { prepareEntryFromExport } from './libraryPrepare';
 
 type AddCommand = Extract<LibraryCommand, { kind: 'add' }>;
 
@@ -35,7 +36,7 @@ export async function runLibrary(args: string[], deps?: Partial<LibraryCliDeps>)
     write: (t) => { process.stdout.write(t); },
     writeError: (t) => { process.stderr.write(t); },
     nowMs: () => Date.now(),
-    prepareEntry: async (command, cwd) => (await import('./libraryPrepare')).prepareEntryFromExport(command, cwd),
+    prepareEntry: prepareEntryFromExport,
     ...deps,
   };
   const command = parseLibraryArgs(args);
