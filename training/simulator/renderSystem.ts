@@ -24,14 +24,18 @@ const RATIO_SOURCES = new Set(['cpu', 'steal', 'iowait', 'idle', 'throttle', 'me
 
 /** Rounds to `digits` significant digits of the series' typical level (one quantum for all steps). */
 function quantise(values: Float64Array, digits: number): void {
-  const sorted = Float64Array.from(values).sort();
-  const level = Math.abs(sorted[sorted.length >> 1] as number);
+  // Median of at most 33 evenly spaced samples: the level only picks the rounding quantum.
+  const stride = Math.max(1, Math.floor(values.length / 33));
+  const picks: number[] = [];
+  for (let i = 0; i < values.length; i += stride) picks.push(values[i] as number);
+  picks.sort((a, b) => a - b);
+  const level = Math.abs(picks[picks.length >> 1] as number);
   if (!(level > 0)) return;
   const quantum = 10 ** (Math.floor(Math.log10(level)) - digits + 1);
   for (let i = 0; i < values.length; i += 1) values[i] = Math.round((values[i] as number) / quantum) * quantum;
 }
 
-function renderValues(s: SeriesSpec, o: Observables, rng: Random, stepMs: number, burstProbability: number, shared: Float64Array): Float64Array {
+function renderValues(s: SeriesSpec, o: Observables, rng: Random, stepMs: number, burstProbability: number, shared: Float64Array, logTail: Float64Array): Float64Array {
   const n = o.traffic.length;
   const out = new Float64Array(n);
   if (s.role.isIrrelevant) {
@@ -53,7 +57,7 @@ function renderValues(s: SeriesSpec, o: Observables, rng: Random, stepMs: number
   let burstAt = nextBurst(0);
   for (let i = 0; i < n; i += 1) {
     let v = (base[i] as number) * s.factor;
-    if (s.tailWeight > 0) v *= Math.exp(s.tailWeight * Math.log(o.tail[i] as number));
+    if (s.tailWeight > 0) v *= Math.exp(s.tailWeight * (logTail[i] as number));
     // 1 + σz is lognormal noise to first order for σ <= 0.16, at a fraction of the cost. Copies
     // of one role share most of it (0.8² + 0.6² = 1), so percentiles stay ordered and pod/node
     // copies move together, as real family members do.
@@ -108,13 +112,16 @@ export function renderSystem(spec: SystemSpec, request: RenderRequest, rng: Rand
   const baseTraffic = drawBaseTraffic(spec.params, rng, timesMs, spec.stepMs);
   const o = deriveObservables(spec.params, drivers, baseTraffic, rng, spec.stepMs);
   const sharedNoise = new Map<string, Float64Array>();
+  const logTail = new Float64Array(n);
+  for (let i = 0; i < n; i += 1) logTail[i] = Math.log(o.tail[i] as number);
   const series: SimSeries[] = spec.series.map((s) => {
     let shared = sharedNoise.get(s.role.key);
     if (!shared) {
-      shared = Float64Array.from({ length: n }, () => rng.normal());
+      shared = new Float64Array(n);
+      for (let i = 0; i < n; i += 1) shared[i] = rng.normal();
       sharedNoise.set(s.role.key, shared);
     }
-    const rendered = renderValues(s, o, rng, spec.stepMs, spec.params.burstProbability, shared);
+    const rendered = renderValues(s, o, rng, spec.stepMs, spec.params.burstProbability, shared, logTail);
     if (s.kind === 'gauge' && s.significantDigits > 0) quantise(rendered, s.significantDigits);
     const values = s.kind === 'counter' ? accumulate(s, rendered, o, rng, spec.stepMs) : rendered;
     punchGaps(values, s.gapProbability, rng);

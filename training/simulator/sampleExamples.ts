@@ -3,6 +3,7 @@
  * (counters as per-second rates), families as inference would infer them from the names.
  */
 import { inferFamily } from '../../extension/core/frame/families';
+import type { Family } from '../../extension/core/frame/types';
 import { CLASSES } from '../../extension/core/model/types';
 import type { MetricWindow } from '../../extension/core/model/types';
 import { BENIGN_KINDS, QUIET_WINDOW_KINDS } from './benignEvents';
@@ -10,7 +11,7 @@ import { convertCounterToRates } from './counterRates';
 import type { FaultPlan } from './faults';
 import { createRandom, mixSeeds, type Random } from './random';
 import { renderSystem } from './renderSystem';
-import { buildSystemSpec, formatSeriesId, type SystemSpec } from './systemSpec';
+import { buildSystemSpec, type SeriesSpec, type SystemSpec } from './systemSpec';
 import type { MetricTruth, SimClass, TrainingExample } from './types';
 
 export interface SampleOptions {
@@ -53,6 +54,18 @@ const KEY_ROLES: Readonly<Record<SimClass, readonly string[]>> = {
 };
 
 const BASE_TIME_MS = Date.UTC(2026, 0, 5);
+
+const familyCache = new Map<string, Family>();
+/** inferFamily is pure, and the same few hundred names recur in every example. */
+function inferFamilyCached(name: string, unit: string | undefined): Family {
+  const key = `${name}\u0000${unit ?? ''}`;
+  let family = familyCache.get(key);
+  if (family === undefined) {
+    family = inferFamily(name, unit);
+    familyCache.set(key, family);
+  }
+  return family;
+}
 
 function validateRange(name: string, range: readonly [number, number]): void {
   const [lo, hi] = range;
@@ -139,8 +152,8 @@ export function sampleOneExample(spec: SystemSpec, label: SimClass, rng: Random,
     const isCounter = s.kind === 'counter';
     const values = isCounter ? convertCounterToRates(s.values, system.stepMs) : s.values;
     metrics.push({
-      id: formatSeriesId(s.name, s.labels),
-      family: inferFamily(s.name, s.unit),
+      id: (spec.series[k] as SeriesSpec).id,
+      family: inferFamilyCached(s.name, s.unit),
       baseline: values.slice(layout.baselineStart, layout.baselineStart + baselineSteps),
       window: values.slice(layout.windowStart, layout.windowStart + windowSteps),
     });
