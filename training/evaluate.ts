@@ -1,8 +1,9 @@
 /**
- * `npm run evaluate [-- --card] [--no-baselines] [--baseline-train N]`: rebuilds the splits recorded in
+ * `npm run evaluate [-- --card] [--no-baselines] [--baseline-train N] [--baseline-epochs E]`: rebuilds the splits recorded in
  * media/model/classifier.json, scores the bundled model through the real runtime (onnxruntime) on the
  * held-out simulated systems, trains and scores the baselines on the same data, and prints markdown
- * tables. `--card` also replaces the evaluation section of media/model/MODEL_CARD.md.
+ * tables. With `--baseline-train N` the baselines (tfjs, slow on 2 cores) see only the first N training
+ * examples, and our architecture is also retrained on those N for a like-for-like row. `--card` also replaces the evaluation section of media/model/MODEL_CARD.md.
  */
 import { readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
@@ -12,7 +13,11 @@ import { CLASSES } from '../extension/core/model/types';
 import { loadClassifierModel } from '../extension/runtime/onnxRunner';
 import { computeArgmaxRows, computeClassScores, computeConfusionMatrix, computeEce, computeMacroF1 } from './metrics';
 import { buildSplits, type TrainingExample } from './simulator';
-import { MODEL_DIR } from './train';
+import { computeFeatureNormalization, encodeExamples } from './buildDataset';
+import { DEFAULT_WINDOW_SPEC } from '../extension/core/model/encode';
+import { DEFAULT_SHAPE } from './setModel';
+import { MODEL_DIR, predictAll } from './train';
+import { trainSetModel } from './trainSetModel';
 
 interface Scored { readonly name: string; readonly predicted: Int32Array; readonly note?: string }
 
@@ -89,15 +94,27 @@ async function scoreBaselineModels(splits: { train: TrainingExample[]; calibrati
   }
   if (!mod.scoreBaselines) return [];
   const train = trainLimit !== undefined ? splits.train.slice(0, trainLimit) : splits.train;
-  const results = await mod.scoreBaselines({ train, calibration: splits.calibration, test: splits.test }, { log });
-  const note = trainLimit !== undefined && trainLimit < splits.train.length ? `trained on the first ${train.length} of ${splits.train.length} training examples` : undefined;
+  const epochsAt = process.argv.indexOf('--baseline-epochs');
+  const epochs = epochsAt >= 0 ? Number(process.argv[epochsAt + 1]) : undefined;
+  const results = await mod.scoreBaselines({ train, calibration: splits.calibration, test: splits.test }, { log, epochs });
+  const note = `trained on ${train.length === splits.train.length ? 'all' : `the first ${train.length} of`} ${splits.train.length} training examples${epochs !== undefined ? `, ${epochs} epochs` : ''}`;
   return results.map((r) => ({ name: r.name, predicted: r.predicted, note }));
+}
+
+/** Our architecture retrained on the same subset the baselines saw, scored with the reference forward pass. */
+function scoreOursOnSubset(train: readonly TrainingExample[], test: readonly TrainingExample[], epochs: number, seed: number): Int32Array {
+  const encodedTrain = encodeExamples(train, DEFAULT_WINDOW_SPEC);
+  const weights = trainSetModel(encodedTrain, DEFAULT_SHAPE, computeFeatureNormalization(encodedTrain), {
+    epochs, batchSize: 64, learningRate: 3e-3, weightDecay: 1e-5, nodeDropoutRate: 0.5, seed,
+  });
+  const encodedTest = encodeExamples(test, DEFAULT_WINDOW_SPEC);
+  return computeArgmaxRows(predictAll(weights, encodedTest).logits, CLASSES.length);
 }
 
 async function main(): Promise<void> {
   const argv = process.argv.slice(2);
   const log = (s: string): void => { process.stderr.write(`${s}\n`); };
-  const spec = JSON.parse(readFileSync(join(MODEL_DIR, 'classifier.json'), 'utf8')) as { training: { seed: number; trainCount: number; calibrationCount: number; testCount: number } };
+  const spec = JSON.parse(readFileSync(join(MODEL_DIR, 'classifier.json'), 'utf8')) as { training: { seed: number; trainCount: number; calibrationCount: number; testCount: number; epochs: number } };
   const t = spec.training;
   log(`rebuilding splits (seed ${t.seed})`);
   const splits = buildSplits(t.seed, { trainCount: t.trainCount, calibrationCount: t.calibrationCount, testCount: t.testCount });
@@ -107,7 +124,12 @@ async function main(): Promise<void> {
   const limitAt = argv.indexOf('--baseline-train');
   const limit = limitAt >= 0 ? Number(argv[limitAt + 1]) : undefined;
   const baselines = argv.includes('--no-baselines') ? [] : await scoreBaselineModels({ ...splits, test }, limit, log);
-  const rows = [{ name: 'ours: family-pooled set model (bundled ONNX)', predicted: ours.predicted, note: undefined as string | undefined }, ...baselines].map((r) => {
+  const sameData: Scored[] = [];
+  if (limit !== undefined && baselines.length > 0) {
+    log(`retraining our architecture on the same ${limit} examples`);
+    sameData.push({ name: 'ours, same training subset as the baselines', predicted: scoreOursOnSubset(splits.train.slice(0, limit), test, spec.training.epochs, spec.training.seed), note: `trained on the first ${limit} training examples, ${spec.training.epochs} epochs` });
+  }
+  const rows = [{ name: 'ours: family-pooled set model (bundled ONNX)', predicted: ours.predicted, note: `trained on all ${splits.train.length} training examples, ${spec.training.epochs} epochs` as string | undefined }, ...sameData, ...baselines].map((r) => {
     const confusion = computeConfusionMatrix(labels, r.predicted, CLASSES.length);
     const correct = Array.from(r.predicted).filter((p, i) => p === labels[i]).length;
     return [r.name, f3(computeMacroF1(confusion)), f3(correct / labels.length), r.note ?? ''];
