@@ -1,4 +1,5 @@
 import type { ExportReader } from './exportReader';
+import { JsonResultStreamer } from './jsonResultStreamer';
 import { IssueCollector, SeriesAccumulator, formatSeriesId, inferKindFromName } from './seriesAccumulator';
 import type { IngestResult, RawSeries } from './types';
 
@@ -14,78 +15,103 @@ function isObject(value: unknown): value is JsonObject {
  * Times are Unix seconds (possibly fractional, as the API documents); values are strings, with
  * "NaN", "+Inf" and "-Inf" read as such (NaN becomes a gap in the frame). `vector` results are read
  * as one sample per series. `status: "error"` gives an error carrying the server's errorType and
- * message. Issue `line` is the 1-based index of the series in `result` (the document has no useful
- * line numbers once parsed); 1 for document-level problems.
- * The whole document is held until `finish` (it is one JSON value); this is the one reader whose
- * memory follows the text size.
+ * message (and no series). Streamed: each element of `data.result` is parsed as soon as it closes,
+ * so memory follows one series (the API caps a range query at 11,000 points per series), not the
+ * file. Issue `line` is the line where the offending series starts, or of a syntax error.
  */
 export function createRangeQueryJsonReader(file: string): ExportReader {
-  const chunks: string[] = [];
+  const issues = new IssueCollector(file);
+  const series: RawSeries[] = [];
+  let unnamedCount = 0;
+  const streamer = new JsonResultStreamer((text, index, line) => {
+    let item: unknown;
+    try {
+      item = JSON.parse(text);
+    } catch (err) {
+      issues.error(line + lineOfJsonError(text, err) - 1, `expected series ${index + 1} of data.result to be valid JSON, got a syntax error: ${(err as Error).message}`);
+      return;
+    }
+    const read = readResultItem(item, index + 1, line, issues);
+    if (read === undefined) return;
+    if (read.isUnnamed) unnamedCount++;
+    series.push(read.series);
+  });
   return {
-    push(chunk: string): void { chunks.push(chunk); },
-    finish(): IngestResult { return readRangeQueryJson(file, chunks.join('')); },
+    push(chunk: string): void { streamer.push(chunk); },
+    finish(): IngestResult {
+      const { envelope, unfinishedElement } = streamer.finish();
+      const result = (kept: RawSeries[], assumptions: string[]): IngestResult =>
+        ({ file, format: 'range-query-json', series: kept, issues: issues.finish(1), assumptions });
+      if (unfinishedElement !== '') {
+        issues.error(1 + countLines(envelope), `expected series ${streamer.elementCount + 1} of data.result to end, got the end of the input (truncated file?)`);
+      }
+      const envelopeDoc = parseEnvelope(envelope, unfinishedElement !== '', issues);
+      if (envelopeDoc === undefined) return result(series, []);
+      if (envelopeDoc === 'error') return result([], []);
+      const assumptions = ['times read as Unix seconds, as the query API documents'];
+      if (unnamedCount > 0) assumptions.push(`${unnamedCount} series had no __name__ (a function or aggregation was applied) and are named by their labels`);
+      return result(series, assumptions);
+    },
   };
 }
 
-function readRangeQueryJson(file: string, text: string): IngestResult {
-  const issues = new IssueCollector(file);
-  const assumptions: string[] = [];
-  const result: IngestResult = { file, format: 'range-query-json', series: [], issues: issues.issues, assumptions };
+/** Checks the document around the streamed series; 'error' when the server reported a failure. */
+function parseEnvelope(envelope: string, isTruncated: boolean, issues: IssueCollector): JsonObject | 'error' | undefined {
+  const text = envelope.charCodeAt(0) === 0xfeff ? envelope.slice(1) : envelope;
+  if (text.trim() === '') { issues.error(1, 'file is empty: expected a JSON object with "status" and "data"'); return undefined; }
   let doc: unknown;
   try {
-    doc = JSON.parse(text.charCodeAt(0) === 0xfeff ? text.slice(1) : text);
+    doc = JSON.parse(text);
   } catch (err) {
-    issues.error(lineOfJsonError(text, err), `expected one JSON document, got a syntax error: ${(err as Error).message}`);
-    return { ...result, issues: issues.finish(1) };
+    if (!isTruncated) issues.error(lineOfJsonError(text, err), `expected one JSON document, got a syntax error: ${(err as Error).message}`);
+    return undefined;
   }
-  if (!isObject(doc)) { issues.error(1, `expected a JSON object with "status" and "data", got ${describe(doc)}`); return { ...result, issues: issues.finish(1) }; }
+  if (!isObject(doc)) { issues.error(1, `expected a JSON object with "status" and "data", got ${describe(doc)}`); return undefined; }
   if (doc['status'] === 'error') {
     issues.error(1, `the query failed on the server: ${String(doc['errorType'] ?? 'error')}: ${String(doc['error'] ?? '(no message)')}`);
-    return { ...result, issues: issues.finish(1) };
+    return 'error';
   }
   if (Array.isArray(doc['warnings'])) for (const w of doc['warnings']) issues.warning(1, `server warning: ${String(w)}`);
   const data = doc['data'];
   if (!isObject(data) || !Array.isArray(data['result'])) {
     issues.error(1, `expected "data.result" to be an array, got ${describe(isObject(data) ? data['result'] : data)}`);
-    return { ...result, issues: issues.finish(1) };
+    return undefined;
   }
   const resultType = data['resultType'];
   if (resultType !== 'matrix' && resultType !== 'vector') {
-    issues.error(1, `expected resultType "matrix" (or "vector"), got ${JSON.stringify(resultType)}`);
-    return { ...result, issues: issues.finish(1) };
+    issues.error(1, `expected resultType "matrix" (or "vector"), got ${JSON.stringify(resultType) ?? 'nothing'}`);
+    return undefined;
   }
-  const series = readResultSeries(data['result'], resultType === 'vector', issues, assumptions);
-  assumptions.push('times read as Unix seconds, as the query API documents');
-  return { file, format: 'range-query-json', series, issues: issues.finish(1), assumptions };
+  return doc;
 }
 
-function readResultSeries(items: readonly unknown[], isVector: boolean, issues: IssueCollector, assumptions: string[]): RawSeries[] {
-  const out: RawSeries[] = [];
-  let unnamed = 0;
-  items.forEach((item, i) => {
-    const record = i + 1;
-    if (!isObject(item) || !isObject(item['metric'])) { issues.error(record, `expected {"metric":{…},"values":[…]} for series ${record}, got ${describe(item)}`); return; }
-    const labels: Record<string, string> = {};
-    for (const [k, v] of Object.entries(item['metric'])) if (k !== '__name__' && typeof v === 'string' && v !== '') labels[k] = v;
-    const rawName = item['metric']['__name__'];
-    let name = typeof rawName === 'string' ? rawName : '';
-    if (name === '') { unnamed++; name = Object.keys(labels).length > 0 ? formatSeriesId('', labels) : `series_${record}`; }
-    const samples = isVector ? [item['value']] : item['values'];
-    if (!Array.isArray(samples)) { issues.error(record, `expected "${isVector ? 'value' : 'values'}" to be an array in series ${record}, got ${describe(samples)}`); return; }
-    const acc = new SeriesAccumulator(name, labels, typeof rawName === 'string' ? inferKindFromName(name) : 'gauge');
-    samples.forEach((sample, k) => readSample(acc, sample, issues, record, k));
-    out.push(acc.toRawSeries());
-  });
-  if (unnamed > 0) assumptions.push(`${unnamed} series had no __name__ (a function or aggregation was applied) and are named by their labels`);
-  return out;
+function readResultItem(item: unknown, record: number, line: number, issues: IssueCollector): { series: RawSeries; isUnnamed: boolean } | undefined {
+  if (!isObject(item) || !isObject(item['metric'])) { issues.error(line, `expected {"metric":{…},"values":[…]} for series ${record}, got ${describe(item)}`); return undefined; }
+  const labels: Record<string, string> = {};
+  for (const [k, v] of Object.entries(item['metric'])) if (k !== '__name__' && typeof v === 'string' && v !== '') labels[k] = v;
+  const rawName = item['metric']['__name__'];
+  const isUnnamed = typeof rawName !== 'string' || rawName === '';
+  const name = !isUnnamed ? rawName as string : Object.keys(labels).length > 0 ? formatSeriesId('', labels) : `series_${record}`;
+  const isVector = !('values' in item) && 'value' in item;
+  const samples = isVector ? [item['value']] : item['values'];
+  if (!Array.isArray(samples)) { issues.error(line, `expected "values" to be an array in series ${record}, got ${describe(samples)}`); return undefined; }
+  const acc = new SeriesAccumulator(name, labels, isUnnamed ? 'gauge' : inferKindFromName(name));
+  samples.forEach((sample, k) => readSample(acc, sample, issues, record, k, line));
+  return { series: acc.toRawSeries(), isUnnamed };
 }
 
-function readSample(acc: SeriesAccumulator, sample: unknown, issues: IssueCollector, record: number, index: number): void {
-  if (!Array.isArray(sample) || sample.length !== 2) { issues.error(record, `expected [<unix seconds>, "<value>"] at series ${record} sample ${index + 1}, got ${describe(sample)}`); return; }
+function countLines(text: string): number {
+  let n = 0;
+  for (let i = text.indexOf('\n'); i !== -1; i = text.indexOf('\n', i + 1)) n++;
+  return n;
+}
+
+function readSample(acc: SeriesAccumulator, sample: unknown, issues: IssueCollector, record: number, index: number, line: number): void {
+  if (!Array.isArray(sample) || sample.length !== 2) { issues.error(line, `expected [<unix seconds>, "<value>"] at series ${record} sample ${index + 1}, got ${describe(sample)}`); return; }
   const timeS = typeof sample[0] === 'number' ? sample[0] : typeof sample[0] === 'string' ? Number(sample[0]) : NaN;
-  if (!Number.isFinite(timeS)) { issues.error(record, `expected a Unix time in seconds at series ${record} sample ${index + 1}, got ${describe(sample[0])}`); return; }
+  if (!Number.isFinite(timeS)) { issues.error(line, `expected a Unix time in seconds at series ${record} sample ${index + 1}, got ${describe(sample[0])}`); return; }
   const value = readPromValue(sample[1]);
-  if (value === undefined) { issues.warning(record, `expected a numeric string at series ${record} sample ${index + 1}, got ${describe(sample[1])}; read as a gap`); }
+  if (value === undefined) { issues.warning(line, `expected a numeric string at series ${record} sample ${index + 1}, got ${describe(sample[1])}; read as a gap`); }
   // Rounded to whole ms: float seconds such as 1435781451.781 carry binary noise below 1 µs.
   acc.add(Math.round(timeS * 1000), value ?? NaN);
 }

@@ -60,6 +60,47 @@ describe('range-query JSON reader', () => {
   });
 });
 
+describe('range-query JSON reader, streamed', () => {
+  const feed = (text: string, size: number) => {
+    const reader = createExportReader('range-query-json', 'r.json');
+    for (let i = 0; i < text.length; i += size) reader.push(text.slice(i, i + size));
+    return reader.finish();
+  };
+
+  it('gives the same series in 1-byte chunks as in one piece', () => {
+    const text = readFixture('range-query-doc-example.json');
+    const whole = readExportText(text, 'r.json');
+    for (const size of [1, 3, 64]) {
+      assert.deepEqual(feed(text, size).series.map((s) => [s.id, [...s.timesMs], [...s.values]]), whole.series.map((s) => [s.id, [...s.timesMs], [...s.values]]), `chunk ${size}`);
+    }
+  });
+
+  it('reads the envelope in any key order (status after data) and drops series when status is "error"', () => {
+    const later = '{"data":{"result":[{"metric":{"__name__":"up"},"values":[[1,"1"]]}],"resultType":"matrix"},"status":"success"}';
+    assert.equal(feed(later, 5).series.length, 1);
+    const failed = '{"data":{"resultType":"matrix","result":[{"metric":{"__name__":"up"},"values":[[1,"1"]]}]},"status":"error","errorType":"timeout","error":"query timed out"}';
+    const result = feed(failed, 7);
+    assert.equal(result.series.length, 0);
+    assert.equal(result.issues[0].message, 'the query failed on the server: timeout: query timed out');
+  });
+
+  it('reports a file cut inside a series, keeping the series read before it', () => {
+    const text = readFixture('range-query-doc-example.json');
+    const cut = text.indexOf('localhost:9091');
+    const result = feed(text.slice(0, cut), 100);
+    assert.equal(result.series.length, 1);
+    assert.match(result.issues[0].message, /expected series 2 of data.result to end, got the end of the input/);
+  });
+
+  it('names the line of a syntax error inside a series', () => {
+    const text = readFixture('range-query-doc-example.json').replace('[ 1435781445.781, "0" ]', '[ 1435781445.781, "0" }');
+    const result = feed(text, 50);
+    const error = result.issues.find((i) => i.severity === 'error');
+    assert.ok(error);
+    assert.equal(error.line, 26);
+  });
+});
+
 describe('OTLP JSON reader', () => {
   it('reads a document in the shape of opentelemetry-proto examples/metrics.json, with bare-number timeUnixNano', () => {
     const result = readExportText(readFixture('otlp-example-shape.json'), 'metrics.json');
