@@ -8,10 +8,12 @@ import * as vscode from 'vscode';
 import { CLASSES } from '../core/model/types';
 import { checkLibraryLabel } from '../core/model/libraryDocument';
 import {
-  createLibraryEntry, findStaleEntries, formatEntryId, isBuiltInClassLabel, reembedLibrary,
+  createLibraryEntry, findStaleEntries, formatEntryId, formatLibraryModelVersion, isBuiltInClassLabel, reembedLibrary,
   type EmbedMetricWindows, type LibraryMetricInput,
 } from '../core/model/libraryEntry';
 import { applyLibraryChange } from '../core/model/librarySerialize';
+import { createLibraryEmbedder } from '../core/model/libraryEmbed';
+import type { LoadedClassifier } from '../runtime/onnxRunner';
 import type { LibraryDocument, LibraryEntry, LibraryTimeSpan } from '../core/model/libraryTypes';
 import { LibraryFileError, readLibraryFile, updateLibraryFile } from '../node/libraryStore';
 
@@ -39,6 +41,14 @@ export interface LibraryCommandDeps {
   readonly loadModel: () => Promise<{ readonly modelVersion: string; readonly embed: EmbedMetricWindows }>;
   /** Told after each saved change, so open editors can re-blend their verdicts. */
   readonly onLibraryChanged?: (document: LibraryDocument) => void;
+}
+
+/**
+ * deps.loadModel from the extension's shared, already loaded model: the version recorded in
+ * entries (spec version + ONNX sha256) and the embedding path used for re-embedding.
+ */
+export function toLibraryModel(model: LoadedClassifier): { readonly modelVersion: string; readonly embed: EmbedMetricWindows } {
+  return { modelVersion: formatLibraryModelVersion(model.spec.version, model.sha256), embed: createLibraryEmbedder(model.runner, model.spec.windowSpec) };
 }
 
 /** Command ids, `<ext>.<verb><Noun>`. */

@@ -60,7 +60,8 @@ function json(value: string | boolean): string {
 
 function num(value: number): string {
   if (!Number.isFinite(value)) throw new Error(`expected a finite number in the library, got ${value}`);
-  return JSON.stringify(value);
+  // String() prints finite numbers exactly as JSON.stringify does, several times faster.
+  return String(value);
 }
 
 /** A change to apply to the library under the store's lock (so concurrent changes all survive). */

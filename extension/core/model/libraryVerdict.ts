@@ -121,8 +121,9 @@ export function findNearestIncidents(embedding: ArrayLike<number>, entries: read
       const unitEntry = prepareEmbedding(e.embedding, 'l2');
       let dot = 0;
       for (let i = 0; i < unit.length; i++) dot += unit[i] * unitEntry[i];
+      const prepared = options.normalization === 'l2' ? unitEntry : prepareEmbedding(e.embedding, options.normalization);
       return {
-        id: e.id, label: e.label, squaredDistance: squaredDistance(query, prepareEmbedding(e.embedding, options.normalization)),
+        id: e.id, label: e.label, squaredDistance: squaredDistance(query, prepared),
         cosineSimilarity: dot, exportFile: e.exportFile, window: e.window,
         ...(e.postmortem !== undefined ? { postmortem: e.postmortem } : {}),
       };
