@@ -128,6 +128,8 @@ function onMessage(message: ToWebview): void {
       return;
     case 'showError':
       errorBox.textContent = message.message;
+      // Before the first model arrives the page only holds the loading line: show the error there.
+      if (!state.model) { app.replaceChildren(errorBox); app.setAttribute('aria-busy', 'false'); }
       return;
     default:
       assertNever(message);
