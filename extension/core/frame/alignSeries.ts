@@ -59,25 +59,30 @@ export function applySamplePlan(plan: SamplePlan, rawValues: Float64Array): Floa
 
 /**
  * Per-second rate of a cumulative counter. The first sample has no rate (NaN). A drop is a reset,
- * so the increase is the new value itself (PromQL `rate()` rule). Gaps (NaN) are bridged from the
- * last finite sample, over the longer interval. Returns the rates and the number of resets seen.
+ * so the increase is the new value itself (PromQL `rate()` rule); with `startTimesMs` (OTLP), a
+ * later start time is a reset too, even when the value rose. Gaps (NaN) are bridged from the last
+ * finite sample, over the longer interval. Returns the rates and the number of resets seen.
  */
-export function convertCounterToRate(timesMs: Float64Array, values: Float64Array): { rates: Float64Array; resetCount: number } {
+export function convertCounterToRate(timesMs: Float64Array, values: Float64Array, startTimesMs?: Float64Array): { rates: Float64Array; resetCount: number } {
   const rates = new Float64Array(values.length).fill(NaN);
   let resetCount = 0;
   let lastValue = NaN;
   let lastTimeMs = NaN;
+  let lastStartMs = NaN;
   for (let i = 0; i < values.length; i++) {
     const v = values[i];
     if (!Number.isFinite(v)) continue;
+    const startMs = startTimesMs === undefined ? NaN : startTimesMs[i];
     if (Number.isFinite(lastValue)) {
       const elapsedS = (timesMs[i] - lastTimeMs) / 1000;
       let increase = v - lastValue;
-      if (increase < 0) { increase = v; resetCount++; }
+      // A drop, or a later start of accumulation (OTLP restart), means the counter began again.
+      if (increase < 0 || startMs > lastStartMs) { increase = v; resetCount++; }
       rates[i] = elapsedS > 0 ? increase / elapsedS : NaN;
     }
     lastValue = v;
     lastTimeMs = timesMs[i];
+    lastStartMs = startMs;
   }
   return { rates, resetCount };
 }

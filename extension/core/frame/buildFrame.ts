@@ -99,7 +99,8 @@ function alignOne(raw: RawSeries, plan: SamplePlan, gridIndex: Int32Array, lengt
   let values = applySamplePlan(plan, raw.values);
   let isConvertedToRate = false;
   if (raw.kind === 'counter') {
-    const { rates, resetCount } = convertCounterToRate(plan.timesMs, values);
+    const startTimesMs = raw.startTimesMs === undefined ? undefined : applySamplePlan(plan, raw.startTimesMs);
+    const { rates, resetCount } = convertCounterToRate(plan.timesMs, values, startTimesMs);
     values = rates;
     isConvertedToRate = true;
     if (resetCount > 0) warnings.push(`${raw.id}: ${resetCount} counter reset(s) handled (increase taken from zero)`);

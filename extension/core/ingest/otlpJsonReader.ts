@@ -155,7 +155,7 @@ function readNumberPoints(sink: PointSink, name: string, kind: SeriesKind, point
       value = NaN;
     }
     if ((Number(point['flags'] ?? 0) & FLAG_NO_RECORDED_VALUE) !== 0) value = NaN;
-    seriesFor(sink, name, kind, point, sink.unit).add(timeMs, value);
+    seriesFor(sink, name, kind, point, sink.unit).add(timeMs, value, readStartTimeMs(kind, point));
   }
 }
 
@@ -167,9 +167,16 @@ function readSummaryPoints(sink: PointSink, name: string, kind: SeriesKind, poin
     const isNoValue = (Number(point['flags'] ?? 0) & FLAG_NO_RECORDED_VALUE) !== 0;
     const count = isNoValue ? NaN : readNumber(point['count']) ?? NaN;
     const sum = isNoValue ? NaN : readNumber(point['sum']) ?? NaN;
-    seriesFor(sink, `${name}_count`, kind, point, undefined).add(timeMs, count);
-    seriesFor(sink, `${name}_sum`, kind, point, sink.unit).add(timeMs, sum);
+    const startTimeMs = readStartTimeMs(kind, point);
+    seriesFor(sink, `${name}_count`, kind, point, undefined).add(timeMs, count, startTimeMs);
+    seriesFor(sink, `${name}_sum`, kind, point, sink.unit).add(timeMs, sum, startTimeMs);
   }
+}
+
+/** Start time of a cumulative point (resets show as a new start); NaN for other kinds or when absent. */
+function readStartTimeMs(kind: SeriesKind, point: JsonObject): number {
+  const raw = point['startTimeUnixNano'];
+  return kind === 'counter' && typeof raw === 'string' ? convertNanosStringToMs(raw) : NaN;
 }
 
 /** Numbers as proto3 JSON writes them: JSON numbers, decimal strings, "NaN", "Infinity", "-Infinity". */

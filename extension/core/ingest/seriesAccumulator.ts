@@ -68,13 +68,20 @@ export class SeriesAccumulator {
   readonly values = new FloatColumn();
   unit: string | undefined;
   hasMixedUnits = false;
+  /** Created on the first known start time (OTLP cumulative points). */
+  startTimesMs: FloatColumn | undefined;
 
   constructor(readonly name: string, readonly labels: Readonly<Record<string, string>>, public kind: SeriesKind) {}
 
-  /** Appends one sample. */
-  add(timeMs: number, value: number): void {
+  /** Appends one sample; `startTimeMs` is the start of a cumulative point's accumulation, if known. */
+  add(timeMs: number, value: number, startTimeMs = NaN): void {
+    if (!Number.isNaN(startTimeMs) && this.startTimesMs === undefined) {
+      this.startTimesMs = new FloatColumn();
+      for (let i = 0; i < this.timesMs.length; i++) this.startTimesMs.push(NaN);
+    }
     this.timesMs.push(timeMs);
     this.values.push(value);
+    this.startTimesMs?.push(startTimeMs);
   }
 
   /** Records the unit a cell carried; a second, different unit marks the series as mixed. */
@@ -94,6 +101,7 @@ export class SeriesAccumulator {
       kind: this.kind,
       timesMs: this.timesMs.toArray(),
       values: this.values.toArray(),
+      ...(this.startTimesMs === undefined ? {} : { startTimesMs: this.startTimesMs.toArray() }),
     };
   }
 }

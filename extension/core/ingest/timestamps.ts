@@ -126,7 +126,8 @@ function computeDayMs(year: number, month: number, day: number): number {
   const key = (year * 16 + month) * 32 + day;
   if (key !== cachedDayKey) {
     cachedDayKey = key;
-    cachedDayMs = Date.UTC(year, month - 1, day);
+    // Date.UTC reads years 0–99 as 1900–1999; setUTCFullYear takes the year as written.
+    cachedDayMs = year >= 100 ? Date.UTC(year, month - 1, day) : new Date(0).setUTCFullYear(year, month - 1, day);
   }
   return cachedDayMs;
 }

@@ -17,6 +17,12 @@ export interface RawSeries {
   readonly timesMs: Float64Array;
   /** Sample values; NaN = gap (no recorded value). */
   readonly values: Float64Array;
+  /**
+   * Start of each cumulative point's accumulation, epoch ms (OTLP `startTimeUnixNano`), aligned
+   * with `timesMs`; NaN where unknown. A later start time marks a counter reset even when the
+   * value did not drop. Absent for formats that do not carry it.
+   */
+  readonly startTimesMs?: Float64Array;
 }
 
 /** A problem found while reading; `line` is 1-based (record number for JSON documents). */

@@ -140,6 +140,15 @@ describe('OTLP JSON reader', () => {
     assert.deepEqual(rates.map((r) => Math.round(r * 1e4) / 1e4), [NaN, 1, 1, 0.1667, 1]);
   });
 
+  it('treats a later startTimeUnixNano as a counter restart even when the value rose (OTLP reset rule, REFERENCE.md §1.5)', () => {
+    const point = (start: string, time: string, value: number) => JSON.stringify({ resourceMetrics: [{ scopeMetrics: [{ metrics: [{ name: 'orders', sum: { aggregationTemporality: 2, isMonotonic: true, dataPoints: [{ asDouble: value, startTimeUnixNano: start, timeUnixNano: time }] } }] }] }] });
+    // Process restarted at 120 s and had counted 90 by 180 s: the increase is 90, not 90 − 60.
+    const text = [point('0', '60000000000', 30), point('0', '120000000000', 60), point('150000000000', '180000000000', 90)].join('\n');
+    const frame = buildFrame(readExportText(text, 'restart.jsonl'));
+    assert.deepEqual([...frame.series[0].values].map((r) => Math.round(r * 1e3) / 1e3), [NaN, 0.5, 1.5]);
+    assert.match(frame.warnings.join(' '), /1 counter reset/);
+  });
+
   it('names the line of a broken JSON line and keeps the good lines', () => {
     const lines = readFixture('otlp-file-exporter.jsonl').split('\n');
     lines[1] = lines[1].replace('"resourceMetrics":', '"resourceMetrics"#');

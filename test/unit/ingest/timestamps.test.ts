@@ -31,6 +31,10 @@ describe('timestamps', () => {
     }
   });
 
+  it('reads years before 100 as written (Date.UTC alone would move 0050 to 1950)', () => {
+    assert.equal(iso('0050-06-01T00:00:00Z'), '0050-06-01T00:00:00.000Z');
+  });
+
   it('reads naive date-times as UTC and says so', () => {
     const parsed = parseDateTime('2024-03-01 10:00:00');
     assert.equal(formatRfc3339Utc(parsed.timeMs), '2024-03-01T10:00:00.000Z');
