@@ -1,6 +1,6 @@
 import assert from 'node:assert/strict';
 import { spawn } from 'node:child_process';
-import { mkdtempSync, readFileSync, writeFileSync, existsSync, rmSync, readdirSync } from 'node:fs';
+import { mkdtempSync, mkdirSync, readFileSync, writeFileSync, existsSync, rmSync, readdirSync, utimesSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
 import { applyLibraryChange, serializeLibrary } from '../../../extension/core/model/librarySerialize';
@@ -86,6 +86,23 @@ describe('library store', () => {
     const ids = (await readLibraryFile(file)).entries.map((e) => e.id);
     assert.equal(ids.length, 16);
     assert.ok(ids.every((id, i) => i === 0 || ids[i - 1] < id), 'sorted by id');
+  });
+
+  it('waits for a held lock, then reports the lock file instead of hanging', async () => {
+    await updateLibraryFile(file, addEntry('e1'));
+    writeFileSync(`${file}.lock`, 'another process\n');
+    await assert.rejects(updateLibraryFile(file, addEntry('e2'), { timeoutMs: 150 }), /incident-library\.json\.lock is still held/);
+    assert.deepEqual((await readLibraryFile(file)).entries.map((e) => e.id), ['e1']);
+  });
+
+  it('breaks a lock left behind by a crashed process once it is older than staleMs', async () => {
+    mkdirSync(join(dir, '.metric-triage'), { recursive: true });
+    writeFileSync(`${file}.lock`, 'crashed process\n');
+    const old = new Date(Date.now() - 60_000);
+    utimesSync(`${file}.lock`, old, old);
+    await updateLibraryFile(file, addEntry('e2'), { staleMs: 30_000, timeoutMs: 2_000 });
+    assert.deepEqual((await readLibraryFile(file)).entries.map((e) => e.id), ['e2']);
+    assert.ok(!existsSync(`${file}.lock`));
   });
 
   it('parse issues name the file and the JSON path of the problem', () => {
