@@ -11,6 +11,7 @@ import { createGruReference, toGruVariables } from '../../../training/baselines/
 import { accumulateGruGradient, computeGruLogits, getGruBlockShapes, GRU_BLOCKS, initGruParameters } from '../../../training/baselines/gruNetwork';
 import { scoreBaselines } from '../../../training/baselines/index';
 import { toBatchTensors } from '../../../training/baselines/layers';
+import { computeGini, findBestSplit } from '../../../training/baselines/randomForest';
 import type { NodeSetModel } from '../../../training/baselines/nodeSetModel';
 import { createRandom } from '../../../training/baselines/seededRandom';
 
@@ -168,6 +169,20 @@ describe('baselines', () => {
     }
   });
 
+  it('Gini impurity and the best split match hand computation', () => {
+    // Gini = 1 − Σ p² (Breiman et al. 1984, CART; from memory): counts [2, 2] → 0.5, [3, 1] → 0.375.
+    assert.equal(computeGini([2, 2], 4), 0.5);
+    assert.equal(computeGini([3, 1], 4), 0.375);
+    // x = 1..6 with labels 0,0,0,1,1,1: the pure split lies halfway between 3 and 4, score 0.
+    const features = [1, 2, 3, 4, 5, 6].map((v) => [v]);
+    const split = findBestSplit(features, [0, 0, 0, 1, 1, 1], [0, 1, 2, 3, 4, 5], 0, 2, 1);
+    assert.deepEqual(split, { feature: 0, threshold: 3.5, score: 0 });
+    // Labels 0,1,0,1,1,1: best is x ≤ 3.5 → left [2,1] (Gini 4/9), right [0,3] (0) → 0.5·4/9 = 0.2222.
+    const mixed = findBestSplit(features, [0, 1, 0, 1, 1, 1], [0, 1, 2, 3, 4, 5], 0, 2, 1);
+    assert.equal(mixed?.threshold, 3.5);
+    assert.ok(Math.abs((mixed?.score ?? 1) - 2 / 9) < 1e-12);
+  });
+
   it('unusable (all-NaN) metrics leave the family summary, and so the nearest-centroid input, unchanged', () => {
     const example = makeToySplit(1, 12)[0];
     const gap = new Float64Array(20).fill(Number.NaN);
@@ -180,7 +195,7 @@ describe('baselines', () => {
     // One metric per family keeps the GRU (the slowest) inside a unit-test budget.
     const split = { train: makeToySplit(400, 21, 0), calibration: [], test: makeToySplit(80, 22, 0) };
     const results = await scoreBaselines(split, { seed: 7, epochs: 6, batchSize: 16 });
-    assert.equal(results.length, 4);
+    assert.equal(results.length, 5);
     const truth = split.test.map((e) => (CLASSES as readonly string[]).indexOf(e.label));
     for (const result of results) {
       assert.equal(result.predicted.length, split.test.length);
