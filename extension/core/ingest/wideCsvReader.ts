@@ -1,7 +1,7 @@
 import { CsvRowSplitter, detectDelimiter, findFieldBounds, splitPlainLine } from './csvRowSplitter';
 import { parseDecimalRange } from './parseDecimalRange';
 import { FirstLineBuffer, findFirstLine, type ExportReader } from './exportReader';
-import { FloatColumn, IssueCollector, formatSeriesId, inferKindFromName } from './seriesAccumulator';
+import { IssueCollector, formatSeriesId, inferKindFromName } from './seriesAccumulator';
 import { parseSeriesHeader } from './seriesNames';
 import { TimeCellReader } from './timestamps';
 import type { IngestResult, RawSeries } from './types';
@@ -16,7 +16,6 @@ interface WideColumn {
   readonly labels: Record<string, string>;
   unit: string | undefined;
   hasMixedUnits: boolean;
-  readonly values: FloatColumn;
 }
 
 /**
@@ -32,7 +31,11 @@ export function createWideCsvReader(file: string): ExportReader {
 class WideCsvReader implements ExportReader {
   readonly #issues: IssueCollector;
   readonly #firstLine = new FirstLineBuffer();
-  readonly #times = new FloatColumn(1024);
+  /** Accepted rows; every column holds exactly one value per row, so one counter serves all. */
+  #rowCount = 0;
+  #times: Float64Array = new Float64Array(1024);
+  /** Column values, one Float64Array per series column (same order as #columns). */
+  #data: Float64Array[] = [];
   readonly #timeReader = new TimeCellReader();
   #splitter: CsvRowSplitter | undefined;
   #cells = new ValueCellReader(false);
@@ -40,6 +43,8 @@ class WideCsvReader implements ExportReader {
   #timeIndex = 0;
   #expectedFields = 0;
   #delimiter = ',';
+  /** Field index of each series column, for the hot loop. */
+  #fieldIndexes = new Int32Array(0);
   /** Reused field boundaries of the current line (no allocation per row). */
   #bounds = new Int32Array(64);
 
@@ -69,7 +74,7 @@ class WideCsvReader implements ExportReader {
     this.#splitter?.finish();
     const lastLine = this.#splitter?.nextLine ?? 1;
     if (this.#columns === undefined) this.#issues.error(1, 'file is empty: expected a header line such as "time,<series>,..."');
-    else if (this.#times.length === 0) this.#issues.warning(lastLine, 'no data rows after the header');
+    else if (this.#rowCount === 0) this.#issues.warning(lastLine, 'no data rows after the header');
     return {
       file: this.file,
       format: 'wide-csv',
@@ -94,8 +99,22 @@ class WideCsvReader implements ExportReader {
       return;
     }
     if (count < this.#expectedFields) this.#issues.warning(line, `expected ${this.#expectedFields} fields, got ${count}; missing cells read as gaps`);
-    this.#times.push(timeMs);
-    for (const column of this.#columns) this.#readCell(column, column.index < count ? fields[column.index] : '', line);
+    const row = this.#appendRow(timeMs);
+    const columns = this.#columns;
+    for (let c = 0; c < columns.length; c++) {
+      this.#data[c][row] = this.#readCell(columns[c], columns[c].index < count ? fields[columns[c].index] : '', line);
+    }
+  }
+
+  /** Stores the time of a new row (growing every column together); returns the row index. */
+  #appendRow(timeMs: number): number {
+    if (this.#rowCount === this.#times.length) {
+      const capacity = this.#times.length * 2;
+      this.#times = grow(this.#times, capacity);
+      for (let c = 0; c < this.#data.length; c++) this.#data[c] = grow(this.#data[c], capacity);
+    }
+    this.#times[this.#rowCount] = timeMs;
+    return this.#rowCount++;
   }
 
   /** Hot path for quote-free lines: fields found in place, numbers parsed from char codes. */
@@ -110,22 +129,22 @@ class WideCsvReader implements ExportReader {
     if (count !== this.#expectedFields) { this.#onRow(splitPlainLine(text, start, end, this.#delimiter), line); return; }
     const timeMs = this.#timeReader.readTimeMs(text.slice(bounds[this.#timeIndex], bounds[this.#timeIndex + 1] - 1));
     if (Number.isNaN(timeMs)) { this.#onRow(splitPlainLine(text, start, end, this.#delimiter), line); return; }
-    this.#times.push(timeMs);
+    const row = this.#appendRow(timeMs);
     const pointCode = this.#cells.isDecimalComma ? 44 : 46;
-    for (let c = 0; c < columns.length; c++) {
-      const column = columns[c];
-      const fieldStart = bounds[column.index];
-      const fieldEnd = bounds[column.index + 1] - 1;
+    const data = this.#data;
+    const fieldIndexes = this.#fieldIndexes;
+    for (let c = 0; c < fieldIndexes.length; c++) {
+      const fieldStart = bounds[fieldIndexes[c]];
+      const fieldEnd = bounds[fieldIndexes[c] + 1] - 1;
       const value = parseDecimalRange(text, fieldStart, fieldEnd, pointCode);
-      if (Number.isNaN(value)) this.#readCell(column, text.slice(fieldStart, fieldEnd), line);
-      else column.values.push(value);
+      data[c][row] = Number.isNaN(value) ? this.#readCell(columns[c], text.slice(fieldStart, fieldEnd), line) : value;
     }
   }
 
-  #readCell(column: WideColumn, cell: string, line: number): void {
+  /** Value of one cell through the general reader (units, markers, separators), noting problems. */
+  #readCell(column: WideColumn, cell: string, line: number): number {
     const cells = this.#cells;
     const value = cells.read(cell);
-    column.values.push(value);
     if (cells.status === CellStatus.Invalid) {
       this.#issues.warning(line, `expected a number in column "${column.name}", got "${clip(cell)}"; read as a gap`);
     } else if (cells.unit !== '') {
@@ -135,6 +154,7 @@ class WideCsvReader implements ExportReader {
         this.#issues.warning(line, `column "${column.name}" mixes units: "${column.unit}" and "${cells.unit}"`);
       }
     }
+    return value;
   }
 
   #readHeader(fields: readonly string[], line: number): void {
@@ -159,8 +179,10 @@ class WideCsvReader implements ExportReader {
         this.#issues.warning(line, `duplicate column name "${names[index]}" (columns ${previous + 1} and ${index + 1}); told apart by a "column" label`);
       }
       seen.set(id, index);
-      this.#columns.push({ index, name: parsed.name, labels, unit: parsed.unit, hasMixedUnits: false, values: new FloatColumn(1024) });
+      this.#columns.push({ index, name: parsed.name, labels, unit: parsed.unit, hasMixedUnits: false });
     }
+    this.#fieldIndexes = Int32Array.from(this.#columns, (c) => c.index);
+    this.#data = this.#columns.map(() => new Float64Array(this.#times.length));
     if (this.#columns.length === 0) this.#issues.error(line, `expected a time column and at least one series column, got ${count} column(s)`);
     if (isHeaderless) {
       this.#issues.warning(line, 'expected a header line, got data; columns named column_2, column_3, …');
@@ -169,17 +191,16 @@ class WideCsvReader implements ExportReader {
   }
 
   #buildSeries(): RawSeries[] {
-    if (this.#columns === undefined || this.#times.length === 0) return [];
-    const timesMs = this.#times.toArray();
-    return this.#columns.map((c) => ({
-      id: formatSeriesId(c.name, c.labels),
-      name: c.name,
-      labels: c.labels,
-      unit: c.unit,
-      kind: inferKindFromName(c.name),
-      timesMs,
-      values: c.values.toArray(),
-    }));
+    if (this.#columns === undefined || this.#rowCount === 0) return [];
+    const rows = this.#rowCount;
+    const timesMs = this.#times.slice(0, rows);
+    this.#times = new Float64Array(0);
+    return this.#columns.map((c, i) => {
+      // Copy and release one column at a time so the peak is one extra column, not all of them.
+      const values = this.#data[i].length === rows ? this.#data[i] : this.#data[i].slice(0, rows);
+      this.#data[i] = new Float64Array(0);
+      return { id: formatSeriesId(c.name, c.labels), name: c.name, labels: c.labels, unit: c.unit, kind: inferKindFromName(c.name), timesMs, values };
+    });
   }
 
   #describeAssumptions(): string[] {
@@ -188,6 +209,12 @@ class WideCsvReader implements ExportReader {
     if (this.#cells.hasConvertedUnits) out.push('values written with units converted to base units (bytes, seconds)');
     return out;
   }
+}
+
+function grow(data: Float64Array, capacity: number): Float64Array {
+  const grown = new Float64Array(capacity);
+  grown.set(data);
+  return grown;
 }
 
 /** True when the first cell reads as a time and every other cell as a number or a gap. */
