@@ -7,6 +7,9 @@ import { buildFinding } from '../core/report/buildFinding';
 import type { ChangePointEntry, Finding, MetricEffect, TimeSpan, VerdictSummary } from '../core/report/types';
 import { loadClassifierModel } from '../runtime/onnxRunner';
 import { loadFrame } from './readExport';
+import { matchLibrary } from '../core/model/libraryMatch';
+import { formatLibraryModelVersion } from '../core/model/libraryEntry';
+import { readLibraryFile } from './libraryStore';
 
 /** A window in epoch ms UTC, inclusive. */
 export interface MsRange {
@@ -125,11 +128,28 @@ export async function analyzeExport(path: string, options: AnalyzeOptions): Prom
   const classNames = model.spec.classes;
   const probabilities = new Float32Array(timelinePoints.length * classNames.length);
   timelinePoints.forEach((p, i) => probabilities.set(p.probabilities, i * classNames.length));
-  const summary: VerdictSummary = {
+  let summary: VerdictSummary = {
     className: verdict.className, probability: verdict.probability, isAbstained: verdict.isAbstained,
     abstainReason: verdict.abstainReason, runnerUp: verdict.runnerUp,
     probabilities: Object.fromEntries(classNames.map((c, i) => [c, verdict.probabilities[i]])),
   };
+  let nearestIncidents: Finding['nearestIncidents'];
+  if (options.libraryPath) {
+    const library = await readLibraryFile(options.libraryPath);
+    const match = matchLibrary(summary.probabilities, verdict.embedding, library.entries, formatLibraryModelVersion(model.spec.version, model.sha256));
+    if (match.staleEntryCount > 0) windows.caveats.push(`${match.staleEntryCount} incident-library entries were embedded by another model version and were left out; re-embed the library.`);
+    nearestIncidents = match.nearest.map((n) => ({ label: n.label, similarity: n.cosineSimilarity, postmortem: n.postmortem }));
+    if (match.verdict.libraryWeight > 0) {
+      const v = match.verdict;
+      // A library class can win; the abstain state then follows the blended probability.
+      const isAbstained = v.probability < model.spec.abstainThreshold;
+      summary = {
+        className: v.className, probability: v.probability, runnerUp: v.runnerUp, probabilities: v.probabilities,
+        isAbstained, abstainReason: isAbstained ? `blended confidence ${v.probability.toFixed(2)} below ${model.spec.abstainThreshold}` : undefined,
+        libraryMatch: v.libraryMatch,
+      };
+    }
+  }
   const finding = buildFinding({
     frame, verdict: summary, incident: toSpan(frame, windows.incident), baseline: toSpan(frame, windows.baseline),
     shapley: shapley.values, shapleyCi95: shapley.ci95HalfWidth, effects, changePoints: windows.changePoints,
@@ -139,6 +159,7 @@ export async function analyzeExport(path: string, options: AnalyzeOptions): Prom
     },
     createdMs: options.nowMs ?? Date.now(),
     extraCaveats: windows.caveats,
+    nearestIncidents,
   });
   progress(1, 'Done');
   return {

@@ -6,6 +6,7 @@ import Papa from 'papaparse';
 import { analyzeExport, type AnalysisResult } from '../../../extension/node/analyze';
 import { toClassifyJson, writeFindingInto, parseRange, UsageError } from '../../../extension/cli/classify';
 import { renderFindingMarkdown } from '../../../extension/core/report';
+import { runLibrary } from '../../../extension/cli/library';
 
 const ROOT = join(__dirname, '..', '..', '..');
 const MODEL_DIR = join(ROOT, 'media', 'model');
@@ -83,6 +84,23 @@ describe('analyzeExport end to end (real bundled model, real labelled cloud seri
       const path = join(dir, 'empty.csv');
       writeFileSync(path, 'time,cpu\n');
       await assert.rejects(analyzeExport(path, { modelDir: MODEL_DIR }), (e: Error) => e.message.includes('empty.csv'));
+    } finally {
+      rmSync(dir, { recursive: true, force: true });
+    }
+  });
+
+  it('lists a labelled past incident of the same export as the nearest one when a library is given', async () => {
+    const dir = mkdtempSync(join(tmpdir(), 'mt-lib-'));
+    try {
+      const libraryPath = join(dir, 'incident-library.json');
+      const { incident, baseline } = result.finding;
+      const span = (s: { startMs: number; endMs: number }): string => `${new Date(s.startMs).toISOString()}/${new Date(s.endMs).toISOString()}`;
+      const code = await runLibrary(['add', join(NAB, 'series', FILE), '--label', 'cpu-runaway', '--window', span(incident), '--baseline', span(baseline), '--library', libraryPath, '--model', MODEL_DIR]);
+      assert.equal(code, 0);
+      const withLibrary = await analyzeExport(join(NAB, 'series', FILE), { modelDir: MODEL_DIR, libraryPath, incident, baseline });
+      assert.equal(withLibrary.finding.nearestIncidents?.[0]?.label, 'cpu-runaway');
+      assert.ok((withLibrary.finding.nearestIncidents?.[0]?.similarity ?? 0) > 0.9);
+      assert.match(renderFindingMarkdown(withLibrary.finding), /Similar past incidents/);
     } finally {
       rmSync(dir, { recursive: true, force: true });
     }
