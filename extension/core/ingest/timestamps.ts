@@ -71,26 +71,37 @@ function readDigits(text: string, start: number, count: number): number {
  * Returns `timeMs: NaN` for text that is not a date-time or has out-of-range fields.
  */
 export function parseDateTime(text: string): ParsedDateTime {
+  const timeMs = parseDateTimeMs(text);
+  if (Number.isNaN(timeMs)) return INVALID;
+  return { timeMs, isNaive: lastIsNaive, isLeapSecond: lastIsLeapSecond };
+}
+
+// Flags of the last parseDateTimeMs call: the hot path reads them instead of allocating a result.
+let lastIsNaive = false;
+let lastIsLeapSecond = false;
+
+/** `parseDateTime` without the result object (one per row adds up): epoch ms or NaN; flags in module state. */
+function parseDateTimeMs(text: string): number {
   const s = text.charCodeAt(0) > 32 && text.charCodeAt(text.length - 1) > 32 ? text : text.trim();
-  if (s.length < 10 || s.charCodeAt(4) !== 45 || s.charCodeAt(7) !== 45) return INVALID;
+  if (s.length < 10 || s.charCodeAt(4) !== 45 || s.charCodeAt(7) !== 45) return NaN;
   const year = readDigits(s, 0, 4);
   const month = readDigits(s, 5, 2);
   const day = readDigits(s, 8, 2);
   // Reject 31 February and the like instead of letting Date.UTC roll them into the next month.
-  if (year < 0 || month < 1 || month > 12 || day < 1 || day > daysInMonth(year, month)) return INVALID;
+  if (year < 0 || month < 1 || month > 12 || day < 1 || day > daysInMonth(year, month)) return NaN;
   const dayMs = computeDayMs(year, month, day);
-  if (s.length === 10) return { timeMs: dayMs, isNaive: true, isLeapSecond: false };
+  if (s.length === 10) { lastIsNaive = true; lastIsLeapSecond = false; return dayMs; }
   const sep = s.charCodeAt(10);
-  if (sep !== 84 && sep !== 116 && sep !== 32) return INVALID;
+  if (sep !== 84 && sep !== 116 && sep !== 32) return NaN;
   const hour = readDigits(s, 11, 2);
   const minute = s.charCodeAt(13) === 58 ? readDigits(s, 14, 2) : -1;
-  if (hour < 0 || hour > 23 || minute < 0 || minute > 59) return INVALID;
+  if (hour < 0 || hour > 23 || minute < 0 || minute > 59) return NaN;
   let pos = 16;
   let second = 0;
   let fractionMs = 0;
   if (s.charCodeAt(pos) === 58) {
     second = readDigits(s, pos + 1, 2);
-    if (second < 0 || second > 60) return INVALID;
+    if (second < 0 || second > 60) return NaN;
     pos += 3;
     const c = s.charCodeAt(pos);
     if (c === 46 || c === 44) {
@@ -103,14 +114,15 @@ export function parseDateTime(text: string): ParsedDateTime {
         scale /= 10;
         end++;
       }
-      if (end === pos + 1) return INVALID;
+      if (end === pos + 1) return NaN;
       pos = end;
     }
   }
   const offsetMs = readOffsetMs(s, pos);
-  if (offsetMs === undefined) return INVALID;
-  const timeMs = dayMs + ((hour * 60 + minute) * 60 + second) * 1000 + fractionMs - (offsetMs ?? 0);
-  return { timeMs, isNaive: offsetMs === null, isLeapSecond: second === 60 };
+  if (offsetMs === undefined) return NaN;
+  lastIsNaive = offsetMs === null;
+  lastIsLeapSecond = second === 60;
+  return dayMs + ((hour * 60 + minute) * 60 + second) * 1000 + fractionMs - (offsetMs ?? 0);
 }
 
 function daysInMonth(year: number, month: number): number {
@@ -179,11 +191,11 @@ export class TimeCellReader {
   }
 
   #readDateTime(text: string): number {
-    const parsed = parseDateTime(text);
-    if (Number.isNaN(parsed.timeMs)) return NaN;
-    if (parsed.isNaive) this.#hasNaive = true; else this.#hasOffset = true;
-    if (parsed.isLeapSecond) this.#hasLeap = true;
-    return parsed.timeMs;
+    const timeMs = parseDateTimeMs(text);
+    if (Number.isNaN(timeMs)) return NaN;
+    if (lastIsNaive) this.#hasNaive = true; else this.#hasOffset = true;
+    if (lastIsLeapSecond) this.#hasLeap = true;
+    return timeMs;
   }
 
   /** Epoch ms for a number whose unit is inferred once (from the first value) and then kept. */
