@@ -15,6 +15,9 @@ export interface AnalyzeOptions {
   readonly onProgress?: (fraction: number, message: string) => void;
   readonly isCancelled?: () => boolean;
   readonly libraryPath?: string;
+  readonly timelineWindowSteps?: number;
+  readonly timelineStrideSteps?: number;
+  readonly abstainThreshold?: number;
 }
 
 /** What one analysis of an export returns. */

@@ -2,6 +2,7 @@ import * as path from 'node:path';
 import * as vscode from 'vscode';
 import type { AnalysisResult, HostDeps, MsRange } from './analysisTypes';
 import type { AnalysisState } from './analysisState';
+import { readSettings } from './settings';
 
 /** Thrown inside the facade's callbacks path when the user cancels; callers treat it as "no result". */
 export class AnalysisCancelledError extends Error {
@@ -39,6 +40,7 @@ export async function runAnalysis(
   const fileName = path.basename(exportUri.fsPath);
   const libraryPath = await findLibraryPath(exportUri);
   const modelDir = vscode.Uri.joinPath(deps.extensionUri, 'media', 'model').fsPath;
+  const settings = readSettings(exportUri);
   const result = await vscode.window.withProgress(
     { location: vscode.ProgressLocation.Notification, title: `Metric Triage: ${fileName}`, cancellable: true },
     async (progress, token) => {
@@ -47,6 +49,7 @@ export async function runAnalysis(
       try {
         const analysed = await deps.analyzeExport(exportUri.fsPath, {
           modelDir, libraryPath, ...windows, isCancelled,
+          timelineWindowSteps: settings.windowSteps, timelineStrideSteps: settings.strideSteps, abstainThreshold: settings.abstainThreshold,
           onProgress: (fraction, message) => {
             const next = Math.max(reported, Math.min(1, fraction));
             progress.report({ increment: (next - reported) * 100, message });

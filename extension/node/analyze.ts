@@ -27,6 +27,11 @@ export interface AnalyzeOptions {
   readonly libraryPath?: string;
   /** Shapley sampling budget in ms when there are more than 12 metrics (default 1000). */
   readonly shapleyBudgetMs?: number;
+  /** Timeline window length and stride in grid steps (defaults: the classifier's). */
+  readonly timelineWindowSteps?: number;
+  readonly timelineStrideSteps?: number;
+  /** Abstain below this calibrated probability (default: the model's calibrated threshold). */
+  readonly abstainThreshold?: number;
   /** Clock for the finding's creation time (tests pass a fixed one). */
   readonly nowMs?: number;
 }
@@ -117,10 +122,11 @@ export async function analyzeExport(path: string, options: AnalyzeOptions): Prom
   const model = await loadClassifierModel(options.modelDir);
   const classifier = createClassifier(model.runner, model.spec);
   progress(0.5, 'Classifying');
-  const verdict = await classifier.classifyWindow(frame, windows.incident, windows.baseline);
+  const abstainThreshold = options.abstainThreshold ?? model.spec.abstainThreshold;
+  const verdict = await classifier.classifyWindow(frame, windows.incident, windows.baseline, { abstainThreshold });
   if (options.isCancelled?.()) throw new AnalysisError('cancelled');
   progress(0.6, 'Timeline');
-  const timelinePoints = await classifier.timeline(frame, { isCancelled: options.isCancelled });
+  const timelinePoints = await classifier.timeline(frame, { isCancelled: options.isCancelled, windowSteps: options.timelineWindowSteps, strideSteps: options.timelineStrideSteps });
   progress(0.75, 'Explaining');
   const value = classifier.createSubsetValue(frame, windows.incident, windows.baseline, verdict.classIndex);
   const shapley = await computeShapley(frame.series.length, value, { timeBudgetMs: options.shapleyBudgetMs ?? 1000, seed: 1 });
@@ -142,10 +148,10 @@ export async function analyzeExport(path: string, options: AnalyzeOptions): Prom
     if (match.verdict.libraryWeight > 0) {
       const v = match.verdict;
       // A library class can win; the abstain state then follows the blended probability.
-      const isAbstained = v.probability < model.spec.abstainThreshold;
+      const isAbstained = v.probability < abstainThreshold;
       summary = {
         className: v.className, probability: v.probability, runnerUp: v.runnerUp, probabilities: v.probabilities,
-        isAbstained, abstainReason: isAbstained ? `blended confidence ${v.probability.toFixed(2)} below ${model.spec.abstainThreshold}` : undefined,
+        isAbstained, abstainReason: isAbstained ? `blended confidence ${v.probability.toFixed(2)} below ${abstainThreshold}` : undefined,
         libraryMatch: v.libraryMatch,
       };
     }
@@ -155,7 +161,7 @@ export async function analyzeExport(path: string, options: AnalyzeOptions): Prom
     shapley: shapley.values, shapleyCi95: shapley.ci95HalfWidth, effects, changePoints: windows.changePoints,
     provenance: {
       exportFile: basename(path), exportSha256: sha256, modelVersion: model.spec.version, modelSha256: model.sha256,
-      settings: { shapley: shapley.isExact ? 'exact' : `sampled (${shapley.permutations} permutations)`, abstainThreshold: model.spec.abstainThreshold },
+      settings: { shapley: shapley.isExact ? 'exact' : `sampled (${shapley.permutations} permutations)`, abstainThreshold, ...(options.timelineWindowSteps ? { timelineWindowSteps: options.timelineWindowSteps } : {}), ...(options.timelineStrideSteps ? { timelineStrideSteps: options.timelineStrideSteps } : {}) },
     },
     createdMs: options.nowMs ?? Date.now(),
     extraCaveats: windows.caveats,
