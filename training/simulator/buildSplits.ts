@@ -5,7 +5,7 @@
  */
 import { CLASSES } from '../../extension/core/model/types';
 import { mixSeeds } from './random';
-import { sampleExamples } from './sampleExamples';
+import { sampleExamples, type Difficulty } from './sampleExamples';
 import type { HeldOutClass, TrainingExample } from './types';
 
 export interface SplitOptions {
@@ -16,6 +16,10 @@ export interface SplitOptions {
   readonly trainSystems?: number;
   readonly calibrationSystems?: number;
   readonly testSystems?: number;
+  /** Difficulty of all three splits (default: the realistic defaults of sampleExamples). */
+  readonly difficulty?: Difficulty;
+  /** Overrides `difficulty` for train only (e.g. a cleaner curriculum, same held-out test). */
+  readonly trainDifficulty?: Difficulty;
 }
 
 export interface Splits {
@@ -48,9 +52,9 @@ export function buildSplits(seed: number, options: SplitOptions = {}): Splits {
   const calibrationSeeds = drawSystemSeeds(seed, 2, options.calibrationSystems ?? 80, taken);
   const testSeeds = drawSystemSeeds(seed, 3, options.testSystems ?? 80, taken);
   return {
-    train: sampleExamples({ seed: mixSeeds(seed, 11), count: options.trainCount ?? 6000, systemSeeds: trainSeeds, classes: CLASSES }),
-    calibration: sampleExamples({ seed: mixSeeds(seed, 12), count: options.calibrationCount ?? 1500, systemSeeds: calibrationSeeds, classes: CLASSES }),
-    test: sampleExamples({ seed: mixSeeds(seed, 13), count: options.testCount ?? 1500, systemSeeds: testSeeds, classes: CLASSES }),
+    train: sampleExamples({ seed: mixSeeds(seed, 11), count: options.trainCount ?? 6000, systemSeeds: trainSeeds, classes: CLASSES, difficulty: options.trainDifficulty ?? options.difficulty }),
+    calibration: sampleExamples({ seed: mixSeeds(seed, 12), count: options.calibrationCount ?? 1500, systemSeeds: calibrationSeeds, classes: CLASSES, difficulty: options.difficulty }),
+    test: sampleExamples({ seed: mixSeeds(seed, 13), count: options.testCount ?? 1500, systemSeeds: testSeeds, classes: CLASSES, difficulty: options.difficulty }),
   };
 }
 

@@ -41,11 +41,11 @@ const c = (name: string, scale: number, unit?: string, labels?: Record<string, s
 const memBytes = (p: ServiceParams): number => p.memLimitBytes;
 
 export const ROLES: readonly RoleDef[] = [
-  { key: 'cpuUtil', source: 'cpu', trueFamily: 'cpu', inclusion: 0.8, copies: 'instance', forms: {
+  { key: 'cpuUtil', source: 'cpu', trueFamily: 'cpu', inclusion: 0.9, copies: 'instance', forms: {
     dotted: [g('system.cpu.utilization', 1, '1'), g('process.cpu.utilization', 1, '1'), g('container.cpu.usage', 1, '{cpu}')],
     snake_total: [c('node_cpu_seconds_total', 0.7, 's', { mode: 'user' }), c('process_cpu_seconds_total', 1, 's'), c('container_cpu_usage_seconds_total', 1, 's'), g('instance_cpu_utilization_ratio', 1)],
     free_text: [g('CPU busy % ({host})', 100), g('{svc} cpu usage percent', 100), g('CPU utilisation ({host})', 1)] } },
-  { key: 'cpuIdle', source: 'idle', trueFamily: 'cpu', inclusion: 0.3, copies: 'instance', forms: {
+  { key: 'cpuIdle', source: 'idle', trueFamily: 'cpu', inclusion: 0.35, copies: 'instance', forms: {
     dotted: [c('system.cpu.time', 1, 's', { 'cpu.mode': 'idle' })],
     snake_total: [c('node_cpu_seconds_total', 1, 's', { mode: 'idle' })],
     free_text: [g('CPU idle % ({host})', 100)] } },
@@ -65,7 +65,7 @@ export const ROLES: readonly RoleDef[] = [
     dotted: [g('container.cpu.throttling.ratio', 1, '1')],
     snake_total: [c('container_cpu_cfs_throttled_seconds_total', 1, 's')],
     free_text: [g('CPU throttled % ({svc})', 100)] } },
-  { key: 'memUsed', source: 'mem', trueFamily: 'memory', inclusion: 0.8, copies: 'instance', baseScale: memBytes, forms: {
+  { key: 'memUsed', source: 'mem', trueFamily: 'memory', inclusion: 0.85, copies: 'instance', baseScale: memBytes, forms: {
     dotted: [g('process.memory.usage', 1, 'By'), g('container.memory.working_set', 1, 'By'), g('system.memory.usage', 1, 'By', { 'system.memory.state': 'used' })],
     snake_total: [g('container_memory_working_set_bytes', 1, 'By'), g('process_resident_memory_bytes', 1, 'By'), g('go_memstats_heap_inuse_bytes', 1)],
     free_text: [g('Memory used MB ({host})', 1 / 1048576), g('RSS MiB ({svc})', 1 / 1048576), g('Heap used GB ({svc})', 1 / 1073741824)] } },
@@ -93,7 +93,7 @@ export const ROLES: readonly RoleDef[] = [
     dotted: [g('process.thread.count', 1, '{thread}')],
     snake_total: [g('go_goroutines', 1)],
     free_text: [g('Threads ({svc})', 1)] } },
-  { key: 'diskBusy', source: 'diskBusy', trueFamily: 'disk', inclusion: 0.45, copies: 'device', forms: {
+  { key: 'diskBusy', source: 'diskBusy', trueFamily: 'disk', inclusion: 0.55, copies: 'device', forms: {
     dotted: [c('system.disk.io_time', 1, 's', { device: '{dev}' })],
     snake_total: [c('node_disk_io_time_seconds_total', 1, 's', { device: '{dev}' })],
     free_text: [g('Disk busy % ({dev})', 100), g('{dev} disk utilisation', 1)] } },
@@ -113,11 +113,11 @@ export const ROLES: readonly RoleDef[] = [
     dotted: [c('system.network.io', 1, 'By', { 'network.io.direction': 'transmit' })],
     snake_total: [c('node_network_transmit_bytes_total', 1, 'By', { device: 'eth0' }, true)],
     free_text: [g('Network out MB/s ({host})', 1 / 1048576), g('Bandwidth out kB/s ({host})', 1 / 1024)] } },
-  { key: 'retrans', source: 'retrans', trueFamily: 'network', inclusion: 0.4, copies: 'instance', forms: {
+  { key: 'retrans', source: 'retrans', trueFamily: 'network', inclusion: 0.6, copies: 'instance', forms: {
     dotted: [c('system.network.tcp.retransmits', 1, '{segment}', undefined, true)],
     snake_total: [c('node_netstat_Tcp_RetransSegs', 1, undefined, undefined, true)],
     free_text: [g('TCP retransmits/s ({host})', 1)] } },
-  { key: 'drops', source: 'drops', trueFamily: 'network', inclusion: 0.35, copies: 'instance', forms: {
+  { key: 'drops', source: 'drops', trueFamily: 'network', inclusion: 0.5, copies: 'instance', forms: {
     dotted: [c('system.network.packet.dropped', 1, '{packet}', undefined, true)],
     snake_total: [c('node_network_receive_drop_total', 1, undefined, { device: 'eth0' }, true)],
     free_text: [g('Dropped packets/s ({host})', 1)] } },
@@ -125,19 +125,19 @@ export const ROLES: readonly RoleDef[] = [
     dotted: [g('http.server.request.duration.{q}', 1, 's'), g('http.server.request.duration.{q}', 1000, 'ms'), g('rpc.server.call.duration.{q}', 1000, 'ms')],
     snake_total: [g('http_server_request_duration_seconds', 1, 's', { quantile: '{qv}' }), g('{svc_}request_latency_seconds', 1, 's', { quantile: '{qv}' })],
     free_text: [g('{q} response time ms ({svc})', 1000), g('{svc} latency {q} (s)', 1)] } },
-  { key: 'clientLatency', source: 'clientLatency', trueFamily: 'latency', inclusion: 0.5, copies: 'percentile', forms: {
+  { key: 'clientLatency', source: 'clientLatency', trueFamily: 'latency', inclusion: 0.55, copies: 'percentile', forms: {
     dotted: [g('db.client.operation.duration.{q}', 1, 's', { 'server.address': '{dep}' }), g('http.client.request.duration.{q}', 1000, 'ms', { 'server.address': '{dep}' })],
     snake_total: [g('http_client_request_duration_seconds', 1, 's', { peer: '{dep}', quantile: '{qv}' })],
     free_text: [g('{dep} call latency {q} ms', 1000)] } },
-  { key: 'callerLatency', source: 'callerLatency', trueFamily: 'latency', inclusion: 0.45, copies: 'percentile', forms: {
+  { key: 'callerLatency', source: 'callerLatency', trueFamily: 'latency', inclusion: 0.6, copies: 'percentile', forms: {
     dotted: [g('upstream.response.duration.{q}', 1, 's', { upstream: '{svc}' })],
     snake_total: [g('gateway_upstream_response_seconds', 1, 's', { upstream: '{svc}', quantile: '{qv}' })],
     free_text: [g('courier-gateway → {svc} {q} ms', 1000), g('Checkout page load {q} (s)', 1.2)] } },
-  { key: 'requests', source: 'traffic', trueFamily: 'traffic', inclusion: 0.8, copies: 'instance', forms: {
+  { key: 'requests', source: 'traffic', trueFamily: 'traffic', inclusion: 0.85, copies: 'instance', forms: {
     dotted: [g('http.server.request.rate', 1, '{request}/s'), c('http.server.requests', 1, '{request}', undefined, true)],
     snake_total: [c('http_server_requests_total', 1, undefined, { code: '200' }, true), c('{svc_}requests_total', 1, undefined, undefined, true)],
     free_text: [g('Requests/s ({host})', 1), g('{svc} throughput rpm', 60)] } },
-  { key: 'errorRatio', source: 'errorRatio', trueFamily: 'errors', inclusion: 0.45, copies: 'single', forms: {
+  { key: 'errorRatio', source: 'errorRatio', trueFamily: 'errors', inclusion: 0.55, copies: 'single', forms: {
     dotted: [g('http.server.error_ratio', 1, '1')],
     snake_total: [g('{svc_}request_error_ratio', 1)],
     free_text: [g('Error rate % ({svc})', 100), g('5xx share ({svc})', 1)] } },
@@ -145,7 +145,7 @@ export const ROLES: readonly RoleDef[] = [
     dotted: [g('http.server.success_ratio', 1, '1')],
     snake_total: [g('{svc_}availability_ratio', 1)],
     free_text: [g('Success rate % ({svc})', 100)] } },
-  { key: 'errorCount', source: 'errorRate', trueFamily: 'errors', inclusion: 0.45, copies: 'instance', forms: {
+  { key: 'errorCount', source: 'errorRate', trueFamily: 'errors', inclusion: 0.55, copies: 'instance', forms: {
     dotted: [c('http.server.errors', 1, '{error}', undefined, true), c('app.exceptions', 1, '{exception}', undefined, true)],
     snake_total: [c('http_server_errors_total', 1, undefined, { code: '5xx' }, true), c('{svc_}exceptions_total', 1, undefined, undefined, true), c('http_server_requests_total', 1, undefined, { code: '500' }, true)],
     free_text: [g('Errors/min ({host})', 60), g('Failed checkouts per minute', 60)] } },

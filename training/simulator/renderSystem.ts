@@ -22,16 +22,20 @@ export interface RenderRequest {
 
 const RATIO_SOURCES = new Set(['cpu', 'steal', 'iowait', 'idle', 'throttle', 'mem', 'memAvailable', 'diskBusy', 'errorRatio', 'successRatio', 'poolUse']);
 
-/** Rounds to `digits` significant digits of the series' typical level (one quantum for all steps). */
-function quantise(values: Float64Array, digits: number): void {
+/** Rounding step for `digits` significant digits of the series' typical level; NaN if the level is 0. */
+function findQuantum(values: Float64Array, digits: number): number {
   // Median of at most 33 evenly spaced samples: the level only picks the rounding quantum.
   const stride = Math.max(1, Math.floor(values.length / 33));
   const picks: number[] = [];
   for (let i = 0; i < values.length; i += stride) picks.push(values[i] as number);
   picks.sort((a, b) => a - b);
   const level = Math.abs(picks[picks.length >> 1] as number);
-  if (!(level > 0)) return;
-  const quantum = 10 ** (Math.floor(Math.log10(level)) - digits + 1);
+  return level > 0 ? 10 ** (Math.floor(Math.log10(level)) - digits + 1) : Number.NaN;
+}
+
+/** Rounds every value to a multiple of `quantum` (a monotone map, so ordered copies stay ordered). */
+function quantise(values: Float64Array, quantum: number): void {
+  if (!(quantum > 0)) return;
   for (let i = 0; i < values.length; i += 1) values[i] = Math.round((values[i] as number) / quantum) * quantum;
 }
 
@@ -52,16 +56,21 @@ function renderValues(s: SeriesSpec, o: Observables, rng: Random, stepMs: number
   const ceiling = Math.abs(s.factor);
   const sigma = s.noiseSigma;
   // Next burst position drawn geometrically: one draw per burst instead of one per step.
+  // Quantile copies get their bursts from the shared tail instead, so they never cross.
+  const ownBurstProbability = s.tailWeight > 0 ? 0 : burstProbability;
+  // Quantiles of one distribution move almost together; pod/node copies less so.
+  const sharedWeight = s.tailWeight > 0 ? 0.95 : 0.8;
+  const ownWeight = Math.sqrt(1 - sharedWeight * sharedWeight);
   const nextBurst = (from: number): number =>
-    burstProbability > 0 ? from + Math.floor(Math.log(1 - rng.next()) / Math.log(1 - burstProbability)) : n;
+    ownBurstProbability > 0 ? from + Math.floor(Math.log(1 - rng.next()) / Math.log(1 - ownBurstProbability)) : n;
   let burstAt = nextBurst(0);
   for (let i = 0; i < n; i += 1) {
     let v = (base[i] as number) * s.factor;
     if (s.tailWeight > 0) v *= Math.exp(s.tailWeight * (logTail[i] as number));
     // 1 + σz is lognormal noise to first order for σ <= 0.16, at a fraction of the cost. Copies
-    // of one role share most of it (0.8² + 0.6² = 1), so percentiles stay ordered and pod/node
-    // copies move together, as real family members do.
-    v *= 1 + sigma * (0.8 * (shared[i] as number) + 0.6 * rng.normal());
+    // of one role share most of it (weights with squares summing to 1), so percentiles stay
+    // ordered and pod/node copies move together, as real family members do.
+    v *= 1 + sigma * (sharedWeight * (shared[i] as number) + ownWeight * rng.normal());
     if (i === burstAt) {
       v *= 1 + 0.4 * Math.abs(rng.studentT2());
       burstAt = nextBurst(i + 1);
@@ -112,6 +121,7 @@ export function renderSystem(spec: SystemSpec, request: RenderRequest, rng: Rand
   const baseTraffic = drawBaseTraffic(spec.params, rng, timesMs, spec.stepMs);
   const o = deriveObservables(spec.params, drivers, baseTraffic, rng, spec.stepMs);
   const sharedNoise = new Map<string, Float64Array>();
+  const quanta = new Map<string, number>();
   const logTail = new Float64Array(n);
   for (let i = 0; i < n; i += 1) logTail[i] = Math.log(o.tail[i] as number);
   const series: SimSeries[] = spec.series.map((s) => {
@@ -122,7 +132,15 @@ export function renderSystem(spec: SystemSpec, request: RenderRequest, rng: Rand
       sharedNoise.set(s.role.key, shared);
     }
     const rendered = renderValues(s, o, rng, spec.stepMs, spec.params.burstProbability, shared, logTail);
-    if (s.kind === 'gauge' && s.significantDigits > 0) quantise(rendered, s.significantDigits);
+    if (s.kind === 'gauge' && s.significantDigits > 0) {
+      // The first copy of a role fixes the quantum for all its copies (same exporter, same format).
+      let quantum = quanta.get(s.role.key);
+      if (quantum === undefined) {
+        quantum = findQuantum(rendered, s.significantDigits);
+        quanta.set(s.role.key, quantum);
+      }
+      quantise(rendered, quantum);
+    }
     const values = s.kind === 'counter' ? accumulate(s, rendered, o, rng, spec.stepMs) : rendered;
     punchGaps(values, s.gapProbability, rng);
     return { name: s.name, labels: s.labels, unit: s.unit, kind: s.kind, trueFamily: s.trueFamily, role: s.role.key, values };

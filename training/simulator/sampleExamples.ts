@@ -23,6 +23,38 @@ export interface SampleOptions {
   readonly windowSteps?: readonly [number, number];
   /** Inclusive range of baseline lengths in steps; default [3, 720]. */
   readonly baselineSteps?: readonly [number, number];
+  readonly difficulty?: Difficulty;
+}
+
+/**
+ * Knobs of what makes examples hard (and real). Defaults are the realistic setting; lowering them
+ * gives cleaner data for curriculum training or for measuring what each costs.
+ */
+export interface Difficulty {
+  /** Probability that all key metrics of the fault are missing from an example; default 0.15. */
+  readonly keyMetricDropProbability?: number;
+  /** Probability that an example loses a random 10–50 % of its metrics; default 0.35. */
+  readonly randomDropProbability?: number;
+  /** Share of faults with intensity 0.15–0.4 instead of 0.4–1; default 0.3. */
+  readonly weakFaultShare?: number;
+}
+
+interface ResolvedDifficulty {
+  readonly keyMetricDropProbability: number;
+  readonly randomDropProbability: number;
+  readonly weakFaultShare: number;
+}
+
+function resolveDifficulty(d: Difficulty | undefined): ResolvedDifficulty {
+  const resolved = {
+    keyMetricDropProbability: d?.keyMetricDropProbability ?? 0.15,
+    randomDropProbability: d?.randomDropProbability ?? 0.35,
+    weakFaultShare: d?.weakFaultShare ?? 0.3,
+  };
+  for (const [key, value] of Object.entries(resolved)) {
+    if (!(value >= 0 && value <= 1)) throw new Error(`sampleExamples: expected difficulty.${key} in [0, 1], got ${value}`);
+  }
+  return resolved;
 }
 
 /** Typical incident durations, ms (log-uniform between the bounds). */
@@ -90,7 +122,7 @@ interface Layout {
   readonly fault?: FaultPlan;
 }
 
-function planLayout(spec: SystemSpec, label: SimClass, rng: Random, windowSteps: number, baselineSteps: number): Layout {
+function planLayout(spec: SystemSpec, label: SimClass, rng: Random, windowSteps: number, baselineSteps: number, weakFaultShare: number): Layout {
   const baselineStart = 1; // index 0 only feeds the first counter rate
   const anchor = baselineStart + baselineSteps + (rng.chance(0.3) ? rng.int(1, 2) : 0);
   if (label === 'normal') {
@@ -113,17 +145,17 @@ function planLayout(spec: SystemSpec, label: SimClass, rng: Random, windowSteps:
   const incidentEnd = onset + duration - 1;
   // Nothing after the window can reach the example (all noise is causal), so stop rendering there.
   const lengthSteps = windowEnd + 1;
-  const intensity = rng.chance(0.3) ? rng.uniform(0.15, 0.4) : rng.uniform(0.4, 1);
+  const intensity = rng.chance(weakFaultShare) ? rng.uniform(0.15, 0.4) : rng.uniform(0.4, 1);
   return { lengthSteps, baselineStart, windowStart, windowSteps, baselineSteps, fault: { label, startIndex: onset, endIndex: incidentEnd, intensity } };
 }
 
-function chooseKept(spec: SystemSpec, label: SimClass, rng: Random): boolean[] {
+function chooseKept(spec: SystemSpec, label: SimClass, rng: Random, difficulty: ResolvedDifficulty): boolean[] {
   const keep = spec.series.map(() => true);
-  if (rng.chance(0.2)) {
+  if (rng.chance(difficulty.keyMetricDropProbability)) {
     const key = new Set(KEY_ROLES[label]);
     spec.series.forEach((s, k) => { if (key.has(s.role.key)) keep[k] = false; });
   }
-  if (rng.chance(0.35)) {
+  if (rng.chance(difficulty.randomDropProbability)) {
     const dropShare = rng.uniform(0.1, 0.5);
     keep.forEach((_, k) => { if (rng.chance(dropShare)) keep[k] = false; });
   }
@@ -132,10 +164,11 @@ function chooseKept(spec: SystemSpec, label: SimClass, rng: Random): boolean[] {
 }
 
 /** Draws one example of class `label` from system `spec`. */
-export function sampleOneExample(spec: SystemSpec, label: SimClass, rng: Random, windowRange: readonly [number, number], baselineRange: readonly [number, number]): TrainingExample {
+export function sampleOneExample(spec: SystemSpec, label: SimClass, rng: Random, windowRange: readonly [number, number], baselineRange: readonly [number, number], difficulty: Difficulty = {}): TrainingExample {
+  const knobs = resolveDifficulty(difficulty);
   const windowSteps = drawLength(rng, windowRange);
   const baselineSteps = Math.floor(Math.min(baselineRange[1], Math.max(baselineRange[0], rng.logUniform(baselineRange[0], baselineRange[1] + 1))));
-  const layout = planLayout(spec, label, rng, windowSteps, baselineSteps);
+  const layout = planLayout(spec, label, rng, windowSteps, baselineSteps, knobs.weakFaultShare);
   const benignEvents = [];
   if (label === 'normal' && rng.chance(0.6)) benignEvents.push({ kind: rng.pick(QUIET_WINDOW_KINDS), at: layout.windowStart + rng.int(0, windowSteps - 1) });
   if (rng.chance(0.15)) benignEvents.push({ kind: rng.pick(BENIGN_KINDS), at: layout.baselineStart + rng.int(0, baselineSteps - 1) });
@@ -144,7 +177,7 @@ export function sampleOneExample(spec: SystemSpec, label: SimClass, rng: Random,
     lengthSteps: layout.lengthSteps, startMs, faults: layout.fault ? [layout.fault] : [],
     benignPerStep: rng.uniform(0, 1 / 100), benignEvents,
   }, rng);
-  const keep = chooseKept(spec, label, rng);
+  const keep = chooseKept(spec, label, rng, knobs);
   const metrics: MetricWindow[] = [];
   const truth: MetricTruth[] = [];
   system.series.forEach((s, k) => {
@@ -176,6 +209,7 @@ export function sampleExamples(options: SampleOptions): TrainingExample[] {
   if (!Number.isInteger(options.count) || options.count < 0) throw new Error(`sampleExamples: expected count as a non-negative integer, got ${options.count}`);
   validateRange('windowSteps', windowRange);
   validateRange('baselineSteps', baselineRange);
+  resolveDifficulty(options.difficulty);
   const specs = new Map<number, SystemSpec>();
   const examples: TrainingExample[] = [];
   for (let i = 0; i < options.count; i += 1) {
@@ -186,7 +220,7 @@ export function sampleExamples(options: SampleOptions): TrainingExample[] {
       spec = buildSystemSpec(systemSeed);
       specs.set(systemSeed, spec);
     }
-    examples.push(sampleOneExample(spec, classes[i % classes.length] as SimClass, rng, windowRange, baselineRange));
+    examples.push(sampleOneExample(spec, classes[i % classes.length] as SimClass, rng, windowRange, baselineRange, options.difficulty));
   }
   return examples;
 }

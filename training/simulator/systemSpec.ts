@@ -92,8 +92,12 @@ export function formatSeriesId(name: string, labels: Readonly<Record<string, str
   return `${name}{${keys.map((k) => `${k}="${labels[k] ?? ''}"`).join(',')}}`;
 }
 
-function expandRole(role: RoleDef, style: NamingStyle, vars: Record<string, string>, hosts: readonly string[], rng: Random, params: ServiceParams): SeriesSpec[] {
-  const form = rng.pick(role.forms[style]);
+function expandRole(role: RoleDef, style: NamingStyle, vars: Record<string, string>, hosts: readonly string[], rng: Random, params: ServiceParams, usedNames: Set<string> = new Set()): SeriesSpec[] {
+  // A second spelling must differ in name: one name in two units would be one broken series.
+  const forms = role.forms[style].filter((f) => !usedNames.has(f.name));
+  if (forms.length === 0) return [];
+  const form = rng.pick(forms);
+  usedNames.add(form.name);
   const unitScale = form.scale * (role.baseScale?.(params) ?? 1);
   const copies: Array<{ vars: Record<string, string>; factor: number; tailWeight: number; extraLabel?: [string, string] }> = [];
   if (role.copies === 'percentile') {
@@ -110,6 +114,8 @@ function expandRole(role: RoleDef, style: NamingStyle, vars: Record<string, stri
     }
   }
   const noiseSigma = rng.uniform(0.01, 0.08);
+  // One rounding for all copies of a metric, as one exporter writes them.
+  const significantDigits = form.kind === 'gauge' && rng.chance(0.35) ? rng.pick([1, 2, 2, 3]) : 0;
   return copies.map((copy) => {
     const name = fill(form.name, copy.vars);
     const labels: Record<string, string> = {};
@@ -121,7 +127,7 @@ function expandRole(role: RoleDef, style: NamingStyle, vars: Record<string, stri
       id: formatSeriesId(finalName, labels), name: finalName, labels, unit: form.unit, kind: form.kind,
       trueFamily: role.trueFamily, role, form, factor: copy.factor * unitScale, tailWeight: copy.tailWeight,
       noiseSigma: noiseSigma * (1 + copy.tailWeight), gapProbability: 0, resetProbability: form.kind === 'counter' ? rng.uniform(0, 0.002) : 0,
-      significantDigits: form.kind === 'gauge' && rng.chance(0.35) ? rng.pick([1, 2, 2, 3]) : 0,
+      significantDigits,
     };
   });
 }
@@ -148,9 +154,10 @@ export function buildSystemSpec(seed: number): SystemSpec {
     if (!rng.chance(Math.min(0.95, role.inclusion * density))) continue;
     // A second spelling of the same role (pod and node, process and host) inflates a family.
     const copies = role.isIrrelevant ? 1 : rng.chance(0.25) ? 2 : 1;
+    const usedNames = new Set<string>();
     for (let copy = 0; copy < copies; copy += 1) {
       const style = rng.chance(mixShare) ? rng.pick(styles) : namingStyle;
-      for (const s of expandRole(role, style, vars, hosts, rng, params)) {
+      for (const s of expandRole(role, style, vars, hosts, rng, params, usedNames)) {
         if (seen.has(s.id)) continue;
         seen.add(s.id);
         series.push({ ...s, gapProbability: rng.chance(0.5) ? gapLevel : 0 });
