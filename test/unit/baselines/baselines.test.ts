@@ -101,7 +101,7 @@ describe('baselines', () => {
     normalized.forEach((v, k) => assert.ok(Math.abs(v - expected[k]) < 1e-6, `entry ${k}: ${v}`));
   });
 
-  it('masked padding rows and metric order leave every neural baseline\'s logits unchanged', () => {
+  it('masked padding rows and metric order leave the GCN and GIN logits unchanged', () => {
     const example = makeToySplit(1, 11)[0];
     const batch = encodeBatch([example.metrics]);
     const permuted = encodeBatch([[...example.metrics].reverse()]);
