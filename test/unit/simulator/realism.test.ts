@@ -59,7 +59,8 @@ function measureNabQuietWindows(): Shares {
 }
 
 describe('simulator: realism against open data', () => {
-  it('makes normal windows about as noisy as quiet real cloud metrics (NAB), within a factor of two', () => {
+  it('makes normal windows about as noisy as quiet real cloud metrics (NAB), within a factor of two', function () {
+    this.timeout(300_000);
     const real = measureNabQuietWindows();
     const examples = sampleExamples({ seed: 11, count: 300, systemSeeds: Array.from({ length: 60 }, (_, k) => 900 + k), classes: ['normal'] });
     const zs: Array<{ zMedian: number; zMax: number }> = [];

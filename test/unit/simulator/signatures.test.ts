@@ -36,7 +36,8 @@ function shareShifted(examples: readonly TrainingExample[], roles: readonly stri
 
 describe('simulator: fault signatures (REFERENCE.md §5)', () => {
   const byClass = new Map<SimClass, TrainingExample[]>();
-  before(() => {
+  before(function () {
+    this.timeout(300_000); // 1,200 examples; the shared 2-core machine can be slow
     const classes: SimClass[] = ['normal', 'cpu_saturation', 'memory_leak', 'disk_io_saturation', 'network_latency', 'packet_loss', 'traffic_surge', 'error_storm', 'connection_pool_exhaustion', 'cpu_steal_noisy_neighbour'];
     const examples = sampleExamples({ seed: 77, count: 1200, systemSeeds: Array.from({ length: 80 }, (_, k) => 500 + k), classes });
     for (const e of examples) byClass.set(e.label, [...(byClass.get(e.label) ?? []), e]);
