@@ -10,8 +10,11 @@ import { TIME_COLUMN_NAMES, clip } from './wideCsvReader';
 
 /** Column roles recognised in a long CSV header (case-insensitive). */
 export const NAME_COLUMN_NAMES = new Set(['name', 'metric', '__name__', 'metric_name', 'measurement']);
+/** Header names of a column holding `name{labels}` in one cell. */
 export const SERIES_COLUMN_NAMES = new Set(['series', 'series_id', 'id']);
+/** Header names of the value column. */
 export const VALUE_COLUMN_NAMES = new Set(['value', 'val', 'sample', 'sample_value', '_value']);
+/** Header names of a column with labels packed as `{k="v"}` or `k=v,k2=v2`. */
 export const LABELS_COLUMN_NAMES = new Set(['labels', 'tags', 'attributes', 'dimensions']);
 const UNIT_COLUMN_NAMES = new Set(['unit', 'units']);
 

@@ -1,5 +1,5 @@
 /** Exact powers of ten as doubles (10^0 … 10^22 are exactly representable). */
-const POWERS_OF_TEN = Array.from({ length: 23 }, (_, i) => 10 ** i);
+export const POWERS_OF_TEN = Array.from({ length: 23 }, (_, i) => 10 ** i);
 
 /**
  * Reads `[+-]digits[<point>digits]` from `text[start, end)` without creating a substring.

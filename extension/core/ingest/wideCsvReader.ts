@@ -1,5 +1,5 @@
-import { CsvRowSplitter, detectDelimiter, findFieldBounds, splitPlainLine } from './csvRowSplitter';
-import { parseDecimalRange } from './parseDecimalRange';
+import { CsvRowSplitter, detectDelimiter, splitPlainLine } from './csvRowSplitter';
+import { POWERS_OF_TEN } from './parseDecimalRange';
 import { FirstLineBuffer, findFirstLine, type ExportReader } from './exportReader';
 import { IssueCollector, formatSeriesId, inferKindFromName } from './seriesAccumulator';
 import { parseSeriesHeader } from './seriesNames';
@@ -45,8 +45,9 @@ class WideCsvReader implements ExportReader {
   #delimiter = ',';
   /** Field index of each series column, for the hot loop. */
   #fieldIndexes = new Int32Array(0);
-  /** Reused field boundaries of the current line (no allocation per row). */
+  /** Reused field boundaries and fast-parsed values of the current line (no allocation per row). */
   #bounds = new Int32Array(64);
+  #scratch = new Float64Array(64);
 
   constructor(readonly file: string) {
     this.#issues = new IssueCollector(file);
@@ -117,27 +118,74 @@ class WideCsvReader implements ExportReader {
     return this.#rowCount++;
   }
 
-  /** Hot path for quote-free lines: fields found in place, numbers parsed from char codes. */
+  /**
+   * Hot path for quote-free lines: one pass over the characters finds each field's end and parses
+   * its number at the same time (exact fast path, see parseDecimalRange); fields that are not plain
+   * decimals are re-read by the general cell reader. Lines of an unexpected width or with an
+   * unreadable time take the general row path, which reports them.
+   */
   #onPlainLine(text: string, start: number, end: number, line: number): void {
     const columns = this.#columns;
     if (columns === undefined) { this.#onRow(splitPlainLine(text, start, end, this.#delimiter), line); return; }
-    if (this.#bounds.length < this.#expectedFields + 8) this.#bounds = new Int32Array(this.#expectedFields * 2 + 8);
+    const expected = this.#expectedFields;
+    if (this.#bounds.length < expected + 2) { this.#bounds = new Int32Array(expected * 2 + 8); this.#scratch = new Float64Array(expected * 2 + 8); }
     const bounds = this.#bounds;
-    let count = findFieldBounds(text, start, end, this.#delimiter, bounds);
-    if (count < 0) { this.#onRow(splitPlainLine(text, start, end, this.#delimiter), line); return; }
-    while (count > this.#expectedFields && isBlankRange(text, bounds[count - 1], bounds[count] - 1)) count--;
-    if (count !== this.#expectedFields) { this.#onRow(splitPlainLine(text, start, end, this.#delimiter), line); return; }
+    const scratch = this.#scratch;
+    const delimiterCode = this.#delimiter.charCodeAt(0);
+    const pointCode = this.#cells.isDecimalComma ? 44 : 46;
+    let field = 0;
+    let i = start;
+    bounds[0] = start;
+    for (;;) {
+      if (field >= expected) { this.#onRow(splitPlainLine(text, start, end, this.#delimiter), line); return; }
+      // Inline exact decimal parse (≤ 15 significant digits, one division by an exact power of ten).
+      let c = i < end ? text.charCodeAt(i) : -1;
+      const isNegative = c === 45;
+      if (c === 45 || c === 43) i++;
+      const bodyStart = i;
+      let mantissa = 0;
+      let digits = 0;
+      let fractionDigits = 0;
+      let isInFraction = false;
+      let isPlain = true;
+      for (; i < end; i++) {
+        c = text.charCodeAt(i);
+        if (c === delimiterCode) break;
+        if (c >= 48 && c <= 57) {
+          if (digits > 0 || c !== 48) digits++;
+          mantissa = mantissa * 10 + (c - 48);
+          if (isInFraction) fractionDigits++;
+        } else if (c === pointCode && !isInFraction) {
+          isInFraction = true;
+        } else {
+          isPlain = false;
+          const next = text.indexOf(this.#delimiter, i);
+          i = next === -1 || next > end ? end : next;
+          break;
+        }
+      }
+      const hasDigits = i - bodyStart > (isInFraction ? 1 : 0);
+      if (isPlain && hasDigits && digits <= 15 && fractionDigits <= 22) {
+        const magnitude = fractionDigits === 0 ? mantissa : mantissa / POWERS_OF_TEN[fractionDigits];
+        scratch[field] = isNegative ? -magnitude : magnitude;
+      } else {
+        scratch[field] = NaN;
+      }
+      field++;
+      bounds[field] = i + 1;
+      if (i >= end) break;
+      i++;
+    }
+    if (field !== expected) { this.#onRow(splitPlainLine(text, start, end, this.#delimiter), line); return; }
     const timeMs = this.#timeReader.readTimeMs(text.slice(bounds[this.#timeIndex], bounds[this.#timeIndex + 1] - 1));
     if (Number.isNaN(timeMs)) { this.#onRow(splitPlainLine(text, start, end, this.#delimiter), line); return; }
     const row = this.#appendRow(timeMs);
-    const pointCode = this.#cells.isDecimalComma ? 44 : 46;
     const data = this.#data;
     const fieldIndexes = this.#fieldIndexes;
-    for (let c = 0; c < fieldIndexes.length; c++) {
-      const fieldStart = bounds[fieldIndexes[c]];
-      const fieldEnd = bounds[fieldIndexes[c] + 1] - 1;
-      const value = parseDecimalRange(text, fieldStart, fieldEnd, pointCode);
-      data[c][row] = Number.isNaN(value) ? this.#readCell(columns[c], text.slice(fieldStart, fieldEnd), line) : value;
+    for (let k = 0; k < fieldIndexes.length; k++) {
+      const f = fieldIndexes[k];
+      const value = scratch[f];
+      data[k][row] = Number.isNaN(value) ? this.#readCell(columns[k], text.slice(bounds[f], bounds[f + 1] - 1), line) : value;
     }
   }
 

@@ -1,5 +1,6 @@
 import assert from 'node:assert/strict';
 import fc from 'fast-check';
+import { readExportText } from '../../../extension/core/ingest';
 import { parseDecimalRange } from '../../../extension/core/ingest/parseDecimalRange';
 
 describe('parseDecimalRange (fast number path)', () => {
@@ -21,5 +22,23 @@ describe('parseDecimalRange (fast number path)', () => {
     assert.equal(parseDecimalRange('-0.5', 0, 4), -0.5);
     assert.equal(parseDecimalRange('.5', 0, 2), 0.5);
     assert.equal(parseDecimalRange('5.', 0, 2), 5);
+  });
+
+  it('wide CSV cells read through the in-place line path equal Number() of the cell text', () => {
+    const cell = fc.oneof(
+      fc.double({ noNaN: true, noDefaultInfinity: true }).map(String),
+      fc.integer().map(String),
+      fc.tuple(fc.integer({ min: -99999, max: 99999 }), fc.nat(999999)).map(([a, b]) => `${a}.${b}`),
+      fc.constantFrom('-0', '+5', '.5', '5.', '007', '1e3', '12%', 'NaN', ''),
+    );
+    fc.assert(fc.property(fc.array(fc.array(cell, { minLength: 3, maxLength: 3 }), { minLength: 1, maxLength: 20 }), (rows) => {
+      const text = 'time,a,b,c\n' + rows.map((r, i) => `${1700000000 + i * 60},${r.join(',')}`).join('\n') + '\n';
+      const result = readExportText(text, 'p.csv', 'wide-csv');
+      rows.forEach((r, i) => r.forEach((c, k) => {
+        const expected = c === '' || c === 'NaN' ? NaN : c === '12%' ? 12 : Number(c);
+        const actual = result.series[k].values[i];
+        assert.ok(Object.is(actual, expected) || (actual === 0 && expected === 0), `cell ${JSON.stringify(c)}: expected ${expected}, got ${actual}`);
+      }));
+    }), { numRuns: 1000, seed: 11 });
   });
 });
