@@ -173,19 +173,20 @@ export function sampleOneExample(spec: SystemSpec, label: SimClass, rng: Random,
   if (label === 'normal' && rng.chance(0.6)) benignEvents.push({ kind: rng.pick(QUIET_WINDOW_KINDS), at: layout.windowStart + rng.int(0, windowSteps - 1) });
   if (rng.chance(0.15)) benignEvents.push({ kind: rng.pick(BENIGN_KINDS), at: layout.baselineStart + rng.int(0, baselineSteps - 1) });
   const startMs = BASE_TIME_MS + Math.floor(rng.uniform(0, 300 * 86_400_000) / spec.stepMs) * spec.stepMs;
-  const system = renderSystem(spec, {
+  const keep = chooseKept(spec, label, rng, knobs);
+  // Only the metrics this vantage point exports are rendered: dropped ones cost nothing.
+  const kept = spec.series.filter((_, k) => keep[k]);
+  const system = renderSystem({ ...spec, series: kept }, {
     lengthSteps: layout.lengthSteps, startMs, faults: layout.fault ? [layout.fault] : [],
     benignPerStep: rng.uniform(0, 1 / 100), benignEvents,
   }, rng);
-  const keep = chooseKept(spec, label, rng, knobs);
   const metrics: MetricWindow[] = [];
   const truth: MetricTruth[] = [];
   system.series.forEach((s, k) => {
-    if (!keep[k]) return;
     const isCounter = s.kind === 'counter';
     const values = isCounter ? convertCounterToRates(s.values, system.stepMs) : s.values;
     metrics.push({
-      id: (spec.series[k] as SeriesSpec).id,
+      id: (kept[k] as SeriesSpec).id,
       family: inferFamilyCached(s.name, s.unit),
       baseline: values.slice(layout.baselineStart, layout.baselineStart + baselineSteps),
       window: values.slice(layout.windowStart, layout.windowStart + windowSteps),
