@@ -3,8 +3,9 @@
  * (deleted afterwards), then measures, each in a fresh child process so peak RSS is its own:
  *  - ours: readExportFile (stream → readers → RawSeries) and buildFrame (grid alignment);
  *  - bare: papaparse streaming the same file with a chunk callback that keeps nothing.
- * Reports throughput (MB/s), the ours/bare ratio (target ≥ 0.5) and peak RSS against
- * 2 × Float64 payload + 200 MB. BENCH_1GB=1 adds a 1 GB wide CSV run.
+ * Reports throughput (MB/s of CPU time, which stays meaningful when other work shares the cores;
+ * wall time in the note), the ours/bare ratio (target ≥ 0.5; best of 3 alternating runs each) and
+ * the worst peak RSS against 2 × Float64 payload + 200 MB. BENCH_1GB=1 adds a 1 GB wide CSV run.
  */
 import { spawnSync } from 'node:child_process';
 import { createReadStream, createWriteStream, mkdtempSync, rmSync, statSync } from 'node:fs';
@@ -128,10 +129,22 @@ function measureInChild(mode: 'ours' | 'bare', path: string): ChildReport {
   return JSON.parse(child.stdout) as ChildReport;
 }
 
-function compare(label: string, path: string, payloadBytes: number): BenchLine[] {
+/** Best (least disturbed) of `rounds` alternating runs: other work on shared cores only slows a run down. */
+function measureBest(mode: 'ours' | 'bare', path: string, runs: ChildReport[]): ChildReport {
+  runs.push(measureInChild(mode, path));
+  return runs.reduce((best, r) => (r.readCpuMs < best.readCpuMs ? r : best));
+}
+
+function compare(label: string, path: string, payloadBytes: number, rounds: number): BenchLine[] {
   const sizeMB = statSync(path).size / MB;
-  const bare = measureInChild('bare', path);
-  const ours = measureInChild('ours', path);
+  const bareRuns: ChildReport[] = [];
+  const oursRuns: ChildReport[] = [];
+  let bare = measureBest('bare', path, bareRuns);
+  let ours = measureBest('ours', path, oursRuns);
+  for (let round = 1; round < rounds; round++) {
+    bare = measureBest('bare', path, bareRuns);
+    ours = measureBest('ours', path, oursRuns);
+  }
   const oursMBs = sizeMB / (ours.readCpuMs / 1000);
   const bareMBs = sizeMB / (bare.readCpuMs / 1000);
   const rssLimitMB = (2 * payloadBytes) / MB + 200;
@@ -139,9 +152,9 @@ function compare(label: string, path: string, payloadBytes: number): BenchLine[]
     { name: `${label}: file size`, value: sizeMB, unit: 'MB', note: `bare parsed ${bare.rows} records` },
     { name: `${label}: ours readExportFile throughput (CPU time)`, value: oursMBs, unit: 'MB/s', note: `wall ${(sizeMB / (ours.readMs / 1000)).toFixed(1)} MB/s` },
     { name: `${label}: bare papaparse stream throughput (CPU time)`, value: bareMBs, unit: 'MB/s', note: `wall ${(sizeMB / (bare.readMs / 1000)).toFixed(1)} MB/s` },
-    { name: `${label}: throughput ratio ours/bare (CPU time)`, value: oursMBs / bareMBs, unit: '×', target: '≥ 0.5' },
+    { name: `${label}: throughput ratio ours/bare (CPU time)`, value: oursMBs / bareMBs, unit: '×', target: '≥ 0.5', note: `best of ${rounds} alternating runs each` },
     { name: `${label}: ours buildFrame time`, value: ours.frameMs, unit: 'ms', note: `${ours.seriesCount} series × ${ours.rows} grid points` },
-    { name: `${label}: ours peak RSS (read + frame)`, value: ours.peakRssBytes / MB, unit: 'MB', target: `≤ ${rssLimitMB.toFixed(0)} (2 × payload + 200)` },
+    { name: `${label}: ours peak RSS (read + frame)`, value: Math.max(...oursRuns.map((r) => r.peakRssBytes)) / MB, unit: 'MB', target: `≤ ${rssLimitMB.toFixed(0)} (2 × payload + 200)` },
     { name: `${label}: bare papaparse peak RSS`, value: bare.peakRssBytes / MB, unit: 'MB' },
     { name: `${label}: Float64 payload`, value: payloadBytes / MB, unit: 'MB' },
   ];
@@ -155,17 +168,17 @@ export async function run(): Promise<BenchReport> {
     const widePath = join(dir, 'wide.csv');
     const wideCells = await writeWideCsv(widePath, 100 * MB);
     // Payload: every value cell plus the shared time column, 8 bytes each.
-    lines.push(...compare('wide 100 MB', widePath, (wideCells + wideCells / 24) * 8));
+    lines.push(...compare('wide 100 MB', widePath, (wideCells + wideCells / 24) * 8, 3));
     rmSync(widePath);
     const longPath = join(dir, 'long.csv');
     const longRows = await writeLongCsv(longPath, 100 * MB);
     // Long CSV keeps a time and a value per row.
-    lines.push(...compare('long 100 MB', longPath, longRows * 16));
+    lines.push(...compare('long 100 MB', longPath, longRows * 16, 3));
     rmSync(longPath);
     if (process.env['BENCH_1GB'] === '1') {
       const bigPath = join(dir, 'wide-1g.csv');
       const bigCells = await writeWideCsv(bigPath, 1024 * MB);
-      lines.push(...compare('wide 1 GB', bigPath, (bigCells + bigCells / 24) * 8));
+      lines.push(...compare('wide 1 GB', bigPath, (bigCells + bigCells / 24) * 8, 1));
       rmSync(bigPath);
     }
   } finally {

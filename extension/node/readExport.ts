@@ -18,7 +18,7 @@ import type { ExportFormat, IngestOptions, IngestResult } from '../core/ingest/t
 export interface ReadExportOptions extends IngestOptions {
   /** Skip sniffing and read as this format. */
   readonly format?: ExportFormat;
-  /** Bytes per read; default 1 MiB. */
+  /** Bytes per read; default 64 KiB. */
   readonly chunkBytes?: number;
 }
 
@@ -86,7 +86,8 @@ async function streamExport(path: string, options: ReadExportOptions, isHashing:
   let reader: ExportReader | undefined;
   let head = '';
   let bytesRead = 0;
-  const stream = createReadStream(path, { highWaterMark: options.chunkBytes ?? 1 << 20 });
+  // 64 KiB chunks keep each parsed batch in the CPU cache (measured faster than 1 MiB in bench/ingest).
+  const stream = createReadStream(path, { highWaterMark: options.chunkBytes ?? 1 << 16 });
   try {
     for await (const raw of stream) {
       const chunk = raw as Buffer;
