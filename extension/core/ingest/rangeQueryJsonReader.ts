@@ -49,6 +49,7 @@ export function createRangeQueryJsonReader(file: string): ExportReader {
       if (envelopeDoc === undefined) return result(series, []);
       if (envelopeDoc === 'error') return result([], []);
       const assumptions = ['times read as Unix seconds, as the query API documents'];
+      if (series.some((raw) => raw.values.some(Number.isNaN))) assumptions.push('"NaN" sample values (e.g. 0/0) are shown as gaps; the server sent them as values');
       if (unnamedCount > 0) assumptions.push(`${unnamedCount} series had no __name__ (a function or aggregation was applied) and are named by their labels`);
       return result(series, assumptions);
     },

@@ -35,6 +35,8 @@ describe('range-query JSON reader', () => {
     assert.deepEqual(values.slice(1), [Infinity, -Infinity, 2.5]);
     assert.equal(result.series[0].name, '{job="basket-api"}');
     assert.match(result.assumptions.join(' '), /no __name__/);
+    // OpenMetrics: "NaN MUST NOT be considered a missing value" — so the gap it becomes is stated.
+    assert.match(result.assumptions.join(' '), /"NaN" sample values .* shown as gaps/);
   });
 
   it('turns status "error" into an error carrying the server message', () => {
