@@ -83,10 +83,16 @@ function chooseWindows(frame: MetricFrame, options: AnalyzeOptions): { incident:
   const suggestedBaseline: IndexWindow = suggestion.baseline ?? defaultBaseline(frame, suggestedIncident);
   if (!suggestion.incident) caveats.push(`No incident window stood out (${suggestion.reason}); the last quarter of the export was used.`);
   if (suggestion.isBaselineAfterIncident) caveats.push('Nothing quiet came before the incident; the baseline was taken after it.');
-  const incident = options.incident ? findIndexWindow(frame, options.incident, 'incident window') : suggestedIncident;
+  let incident = options.incident ? findIndexWindow(frame, options.incident, 'incident window') : suggestedIncident;
   const baseline = options.baseline ? findIndexWindow(frame, options.baseline, 'baseline window')
     : options.incident ? defaultBaseline(frame, incident) : suggestedBaseline;
   if (options.incident) caveats.push('The incident window was chosen by hand.');
+  if (incident.endIndex - incident.startIndex + 1 < 3) {
+    // The classifier needs 3 samples; widen forward (or back at the end of the export) and say so.
+    const endIndex = Math.min(n - 1, incident.startIndex + 2);
+    incident = { startIndex: Math.max(0, endIndex - 2), endIndex };
+    caveats.push('The incident window held fewer than 3 samples and was widened to 3.');
+  }
   // One entry per series (its earliest change), so a metric that keeps shifting does not crowd out the rest.
   const firstPerSeries = new Map<string, (typeof suggestion.changePoints)[number]>();
   for (const c of [...suggestion.changePoints].sort((a, b) => a.timeMs - b.timeMs)) {

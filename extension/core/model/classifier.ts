@@ -80,14 +80,32 @@ function checkWindow(frame: MetricFrame, w: IndexWindow, name: string): void {
   }
 }
 
-function buildMetricWindows(frame: MetricFrame, incident: IndexWindow, baseline: IndexWindow, indices: readonly number[]): MetricWindow[] {
+/**
+ * Bucket means (NaN-aware) down to `maxSamples`: a long incident at a fine step (a 20-minute fault
+ * at 1 s is 1,200 samples) keeps its shape, and the model sees at most the window length it knows.
+ */
+export function coarsenWindow(values: Float64Array, maxSamples: number): Float64Array {
+  if (values.length <= maxSamples) return values;
+  const out = new Float64Array(maxSamples);
+  for (let b = 0; b < maxSamples; b++) {
+    const from = Math.floor((b * values.length) / maxSamples);
+    const to = Math.floor(((b + 1) * values.length) / maxSamples);
+    let sum = 0;
+    let count = 0;
+    for (let i = from; i < to; i++) if (Number.isFinite(values[i])) { sum += values[i]; count++; }
+    out[b] = count > 0 ? sum / count : Number.NaN;
+  }
+  return out;
+}
+
+function buildMetricWindows(frame: MetricFrame, incident: IndexWindow, baseline: IndexWindow, indices: readonly number[], maxWindowSamples: number): MetricWindow[] {
   return indices.map((i) => {
     const s = frame.series[i];
     if (!s) throw new RangeError(`series index: expected 0..${frame.series.length - 1}, got ${i}`);
     return {
       id: s.id, family: s.family,
       baseline: s.values.subarray(baseline.startIndex, baseline.endIndex + 1),
-      window: s.values.subarray(incident.startIndex, incident.endIndex + 1),
+      window: coarsenWindow(s.values.subarray(incident.startIndex, incident.endIndex + 1), maxWindowSamples),
     };
   });
 }
@@ -137,10 +155,10 @@ export function createClassifier(runner: InferenceRunner, spec: ClassifierSpec):
     checkWindow(frame, incident, 'incident');
     checkWindow(frame, baseline, 'baseline');
     const length = incident.endIndex - incident.startIndex + 1;
-    if (length < ws.minWindowSamples || length > ws.maxWindowSamples) {
-      throw new RangeError(`incident window: expected ${ws.minWindowSamples}–${ws.maxWindowSamples} samples, got ${length}`);
+    if (length < ws.minWindowSamples) {
+      throw new RangeError(`incident window: expected at least ${ws.minWindowSamples} samples, got ${length}`);
     }
-    const metrics = buildMetricWindows(frame, incident, baseline, options.seriesIndices ?? allIndices(frame));
+    const metrics = buildMetricWindows(frame, incident, baseline, options.seriesIndices ?? allIndices(frame), ws.maxWindowSamples);
     const batch = encodeMetricWindows(metrics, ws);
     const skippedMetricIds = metrics.filter((_, i) => batch.mask[i] === 0).map((m) => m.id);
     const usedMetricCount = metrics.length - skippedMetricIds.length;
@@ -184,7 +202,7 @@ export function createClassifier(runner: InferenceRunner, spec: ClassifierSpec):
       const examples = chunk.map((end) => {
         const incident = { startIndex: end - windowSteps + 1, endIndex: end };
         const baseline = { startIndex: Math.max(0, incident.startIndex - baselineSteps), endIndex: incident.startIndex - 1 };
-        return buildMetricWindows(frame, incident, baseline, indices);
+        return buildMetricWindows(frame, incident, baseline, indices, ws.maxWindowSamples);
       });
       const batch = encodeBatch(examples, ws);
       const output = await runner.run(batch);
@@ -205,7 +223,7 @@ export function createClassifier(runner: InferenceRunner, spec: ClassifierSpec):
     if (!Number.isInteger(classIndex) || classIndex < 0 || classIndex >= spec.classes.length) {
       throw new RangeError(`class index: expected 0..${spec.classes.length - 1}, got ${classIndex}`);
     }
-    const metrics = buildMetricWindows(frame, incident, baseline, options.seriesIndices ?? allIndices(frame));
+    const metrics = buildMetricWindows(frame, incident, baseline, options.seriesIndices ?? allIndices(frame), ws.maxWindowSamples);
     const base = encodeMetricWindows(metrics, ws);
     return async (coalitions) => {
       const values = new Float64Array(coalitions.length);

@@ -106,6 +106,21 @@ describe('analyzeExport end to end (real bundled model, real labelled cloud seri
     }
   });
 
+  it('classifies an incident window longer than the model\'s 512 samples (NAB grok_asg_anomaly, labelled windows)', async () => {
+    const file = 'realAWSCloudwatch__grok_asg_anomaly.csv';
+    const labels = labelledWindows(file);
+    const long = await analyzeExport(join(NAB, 'series', file), { modelDir: MODEL_DIR, incident: { startMs: labels[0].startMs, endMs: labels[labels.length - 1].endMs } });
+    assert.ok(long.finding.incident.endIndex - long.finding.incident.startIndex + 1 > 512);
+    assert.ok(Number.isFinite(long.finding.verdict.probability));
+  });
+
+  it('widens a hand-given window of one sample to the 3 the classifier needs, and says so', async () => {
+    const t = result.frame.timesMs[2000];
+    const one = await analyzeExport(join(NAB, 'series', FILE), { modelDir: MODEL_DIR, incident: { startMs: t, endMs: t } });
+    assert.equal(one.finding.incident.endIndex - one.finding.incident.startIndex + 1, 3);
+    assert.ok(one.finding.caveats.some((c) => c.includes('widened to 3')));
+  });
+
   it('rejects a window given without a time zone (RFC 3339 §5.6 requires one)', () => {
     assert.throws(() => parseRange('2014-02-26T13:45:00/2014-02-27T06:25:00', '--window'), UsageError);
     assert.deepEqual(parseRange('1996-12-19T16:39:57-08:00/1996-12-20T00:40:00Z', '--window'), { startMs: Date.UTC(1996, 11, 20, 0, 39, 57), endMs: Date.UTC(1996, 11, 20, 0, 40, 0) });
