@@ -69,7 +69,7 @@ export function registerLibraryCommands(context: vscode.ExtensionContext, deps: 
       try { return await run(...args); } catch (error) { void reportError(error); return undefined; }
     });
   const disposable = vscode.Disposable.from(
-    guarded(LIBRARY_COMMANDS.labelWindow, (label) => labelWindow(deps, typeof label === 'string' ? label : undefined)),
+    guarded(LIBRARY_COMMANDS.labelWindow, (arg) => labelWindow(deps, readLabelArgument(arg))),
     guarded(LIBRARY_COMMANDS.manageLibrary, () => manageLibrary(deps)),
     guarded(LIBRARY_COMMANDS.renameLibraryEntry, (id) => renameEntry(deps, typeof id === 'string' ? id : undefined)),
     guarded(LIBRARY_COMMANDS.deleteLibraryEntry, (id) => deleteEntry(deps, typeof id === 'string' ? id : undefined)),
@@ -77,6 +77,26 @@ export function registerLibraryCommands(context: vscode.ExtensionContext, deps: 
   );
   context.subscriptions.push(disposable);
   return disposable;
+}
+
+/**
+ * The label of a programmatic call: `executeCommand(id, 'label')` or `executeCommand(id, { label })`.
+ * People get the quick pick instead (menus pass the resource URI, which is not a label).
+ */
+function readLabelArgument(arg: unknown): string | undefined {
+  if (typeof arg === 'string') return arg;
+  if (typeof arg === 'object' && arg !== null && 'label' in arg && typeof arg.label === 'string') return arg.label;
+  return undefined;
+}
+
+/**
+ * False (after telling the user) in an untrusted workspace: the library is a shared file in the
+ * repository, and restricted mode reads and shows but writes nothing.
+ */
+function checkWriteAllowed(): boolean {
+  if (vscode.workspace.isTrusted) return true;
+  void vscode.window.showWarningMessage('Incident library: this workspace is in restricted mode, so the library is not changed. Trust the workspace to label windows.');
+  return false;
 }
 
 function requireLibraryPath(deps: LibraryCommandDeps): string {
@@ -104,6 +124,7 @@ async function pickLabel(document: LibraryDocument, placeHolder: string): Promis
 }
 
 async function labelWindow(deps: LibraryCommandDeps, givenLabel: string | undefined): Promise<LibraryEntry | undefined> {
+  if (!checkWriteAllowed()) return undefined;
   const file = requireLibraryPath(deps);
   const active = await deps.getActiveWindow();
   if (active === undefined) { void vscode.window.showWarningMessage('Open a metric export in Metric Triage and select the incident window first.'); return undefined; }
@@ -148,6 +169,7 @@ async function manageLibrary(deps: LibraryCommandDeps): Promise<void> {
 }
 
 async function renameEntry(deps: LibraryCommandDeps, id: string | undefined): Promise<void> {
+  if (!checkWriteAllowed()) return;
   const file = requireLibraryPath(deps);
   const entry = id === undefined ? await pickEntry(deps, 'Rename which entry?') : (await readLibraryFile(file)).entries.find((e) => e.id === id);
   if (entry === undefined) return;
@@ -158,6 +180,7 @@ async function renameEntry(deps: LibraryCommandDeps, id: string | undefined): Pr
 }
 
 async function deleteEntry(deps: LibraryCommandDeps, id: string | undefined): Promise<void> {
+  if (!checkWriteAllowed()) return;
   const file = requireLibraryPath(deps);
   const entry = id === undefined ? await pickEntry(deps, 'Delete which entry?') : (await readLibraryFile(file)).entries.find((e) => e.id === id);
   if (entry === undefined) return;
@@ -168,6 +191,7 @@ async function deleteEntry(deps: LibraryCommandDeps, id: string | undefined): Pr
 }
 
 async function reembedAll(deps: LibraryCommandDeps): Promise<number> {
+  if (!checkWriteAllowed()) return 0;
   const file = requireLibraryPath(deps);
   const model = await deps.loadModel();
   const stale = findStaleEntries(await readLibraryFile(file), model.modelVersion);

@@ -1,10 +1,10 @@
 import * as vscode from 'vscode';
-import { encodeMetricWindows } from '../core/model/encode';
-import type { MetricWindow } from '../core/model/types';
 import { loadClassifierModel, type LoadedClassifier } from '../runtime/onnxRunner';
 import type { HostDeps } from './analysisTypes';
 import type { AnalysisState } from './analysisState';
-import { registerLibraryCommands, type ActiveLibraryWindow } from './libraryCommands';
+import { registerLibraryCommands, toLibraryModel, type ActiveLibraryWindow } from './libraryCommands';
+
+type LibraryModel = ReturnType<typeof toLibraryModel>;
 
 /** The library file of the first workspace folder (committed with the postmortems). */
 function resolveLibraryPath(): string | undefined {
@@ -35,16 +35,11 @@ function getActiveWindow(state: AnalysisState): ActiveLibraryWindow | undefined 
  */
 export function registerIncidentLibrary(context: vscode.ExtensionContext, deps: HostDeps, state: AnalysisState): vscode.Disposable {
   let model: Promise<LoadedClassifier> | undefined;
-  const loadModel = async (): Promise<{ modelVersion: string; embed: (metrics: readonly MetricWindow[]) => Promise<Float32Array> }> => {
+  // The version recorded in entries must be the one analyzeExport matches against (spec version +
+  // ONNX sha256), else every entry labelled here would count as stale and never match.
+  const loadModel = async (): Promise<LibraryModel> => {
     model ??= loadClassifierModel(vscode.Uri.joinPath(deps.extensionUri, 'media', 'model').fsPath);
-    const loaded = await model;
-    return {
-      modelVersion: loaded.spec.version,
-      embed: async (metrics) => {
-        const output = await loaded.runner.run(encodeMetricWindows(metrics, loaded.spec.windowSpec));
-        return output.embedding.slice(0, output.embeddingSize);
-      },
-    };
+    return toLibraryModel(await model);
   };
   const commands = registerLibraryCommands(context, { resolveLibraryPath, getActiveWindow: async () => getActiveWindow(state), loadModel });
   return vscode.Disposable.from(commands, { dispose: () => { void model?.then((m) => m.runner.release()); } });

@@ -39,4 +39,15 @@ describe('Metric Triage in a real editor (untrusted workspace)', () => {
     assert.deepEqual(await listFiles(folder), filesBefore, 'no file created or removed');
     assert.equal(new TextDecoder().decode(await vscode.workspace.fs.readFile(postmortemUri)), textBefore);
   });
+
+  it('refuses to label a window for the incident library: no library file is written', async () => {
+    const filesBefore = await listFiles(folder);
+    const finding = await vscode.commands.executeCommand<Finding | undefined>('metricTriage.classifyExport', exportUri);
+    assert.ok(finding, 'a window to label exists');
+    const entry = await vscode.commands.executeCommand<unknown>('metricTriage.labelWindow', { label: 'basket_cpu_starvation' });
+    assert.equal(entry, undefined, 'no entry saved');
+    const files = await listFiles(folder);
+    assert.deepEqual(files, filesBefore, 'no file created or removed');
+    assert.ok(!files.some((f) => f.startsWith('.metric-triage')), 'no .metric-triage folder');
+  });
 });
