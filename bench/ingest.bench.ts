@@ -14,20 +14,12 @@ import { join } from 'node:path';
 import { once } from 'node:events';
 import Papa from 'papaparse';
 import type { BenchLine, BenchReport } from './run';
+import { createMulberry32 } from '../extension/core/random';
 
 const MB = 1024 * 1024;
 
 /** Deterministic PRNG (mulberry32) so every run writes the same files. */
-function createRandom(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+const createRandom = createMulberry32;
 
 const SERVICES = ['basket-api', 'pantry-db', 'courier-gateway', 'stock-sync', 'payment-relay'];
 

@@ -10,6 +10,7 @@
  * and the result is exactly invariant to node order. → ReLU embedding → logits.
  */
 import { FAMILIES } from '../extension/core/frame/types';
+import { createMulberry32 } from '../extension/core/random';
 import { NODE_FEATURE_COUNT } from '../extension/core/model/temporalFeatures';
 
 export const FAMILY_COUNT = FAMILIES.length;
@@ -38,16 +39,7 @@ export function getPooledSize(shape: SetModelShape): number {
 }
 
 /** Deterministic pseudo-random generator (mulberry32), so training is reproducible from a seed. */
-export function createRandom(seed: number): () => number {
-  let state = seed >>> 0;
-  return () => {
-    state = (state + 0x6d2b79f5) >>> 0;
-    let t = state;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+export const createRandom = createMulberry32;
 
 function initMatrix(rows: number, cols: number, random: () => number): Float32Array {
   // He-uniform initialization (He et al. 2015) for ReLU layers.

@@ -42,17 +42,8 @@ export interface ShapleyResult {
   readonly permutations: number;
 }
 
-/** Small fast PRNG (mulberry32, public domain); returns floats in [0, 1). */
-export function createMulberry32(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+export { createMulberry32 } from '../random';
+import { createMulberry32 } from '../random';
 
 async function evaluateBatch(value: CoalitionValue, coalitions: readonly Uint8Array[]): Promise<Float64Array> {
   const out = await value(coalitions);

@@ -1,0 +1,14 @@
+/**
+ * Small fast seeded PRNG (mulberry32, public domain): floats in [0, 1), the same sequence for the
+ * same seed on every machine. One implementation for sampling (Shapley), training and fixtures.
+ */
+export function createMulberry32(seed: number): () => number {
+  let a = seed >>> 0;
+  return () => {
+    a = (a + 0x6d2b79f5) >>> 0;
+    let t = a;
+    t = Math.imul(t ^ (t >>> 15), t | 1);
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+  };
+}
