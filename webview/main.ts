@@ -100,7 +100,7 @@ function showInit(model: ViewerModel): void {
   );
   app.setAttribute('aria-busy', 'false');
   document.body.classList.toggle('is-table-view', ui.isTableView === true);
-  renderVerdictHeader(verdictRoot, model.verdict, model.notes);
+  renderVerdictHeader(verdictRoot, model.verdict, model.notes, model.library);
   overview.draw();
   timeline.setTimeline(model.timeline);
   renderContributionPanels(contributionsRoot, model.contributions, state, charts);
@@ -117,7 +117,7 @@ function onMessage(message: ToWebview): void {
     case 'update':
       state.applyUpdate(message.update);
       errorBox.textContent = '';
-      renderVerdictHeader(verdictRoot, message.update.verdict, message.update.notes);
+      renderVerdictHeader(verdictRoot, message.update.verdict, message.update.notes, message.update.library);
       renderContributionPanels(contributionsRoot, message.update.contributions, state, charts);
       renderTableView(tableRoot, message.update.contributions);
       document.body.dataset.updateCount = String(Number(document.body.dataset.updateCount ?? '0') + 1);

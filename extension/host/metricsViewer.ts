@@ -3,6 +3,7 @@ import * as path from 'node:path';
 import * as vscode from 'vscode';
 import { assertNever, isFromWebview, type FromWebview, type ToWebview } from '../protocol';
 import { buildAnalysisUpdate, buildViewerModel } from '../core/view/buildViewerModel';
+import { buildLibraryView } from '../core/view/buildLibraryView';
 import { renderWebviewHtml } from '../core/view/renderWebviewHtml';
 import type { AnalysisResult, HostDeps, MsRange } from './analysisTypes';
 import type { AnalysisState } from './analysisState';
@@ -88,10 +89,13 @@ export class MetricsViewer extends Disposable {
     this.#result = result;
     this.#post({
       type: 'init',
-      model: buildViewerModel({
-        fileName: path.basename(this.exportUri.fsPath), isTrusted: vscode.workspace.isTrusted,
-        frame: result.frame, finding: result.finding, timeline: result.timeline,
-      }),
+      model: {
+        ...buildViewerModel({
+          fileName: path.basename(this.exportUri.fsPath), isTrusted: vscode.workspace.isTrusted,
+          frame: result.frame, finding: result.finding, timeline: result.timeline,
+        }),
+        library: buildLibraryView(result.finding),
+      },
     });
   }
 
@@ -102,7 +106,7 @@ export class MetricsViewer extends Disposable {
       const result = await runAnalysis(this.deps, this.state, this.exportUri, { incident, baseline }, () => this.isDisposed || generation !== this.#generation);
       if (this.isDisposed || !result || generation !== this.#generation) return;
       this.#result = result;
-      this.#post({ type: 'update', update: buildAnalysisUpdate(result.frame, result.finding) });
+      this.#post({ type: 'update', update: { ...buildAnalysisUpdate(result.frame, result.finding), library: buildLibraryView(result.finding) } });
     } finally {
       if (generation === this.#generation) this.#post({ type: 'busy', isBusy: false, message: '' });
     }

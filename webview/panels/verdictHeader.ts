@@ -1,11 +1,26 @@
 import type { VerdictView } from '../../extension/protocol';
+import type { LibraryView } from '../../extension/core/view/types';
 import { el } from '../dom';
+
+/**
+ * The team's incident library under the verdict: the match line (a library class won the blended
+ * verdict) and the nearest past incidents with their postmortems. Null when no library was used.
+ */
+function renderLibrary(library: LibraryView | undefined): HTMLElement | null {
+  if (!library || (library.matchText === '' && library.nearest.length === 0)) return null;
+  return el('section', { className: 'verdict-library', attrs: { 'aria-label': 'Incident library' } }, [
+    library.matchText ? el('p', { className: 'verdict-library-match', text: library.matchText }) : null,
+    library.nearest.length ? el('p', { className: 'verdict-kicker', text: 'Similar past incidents' }) : null,
+    library.nearest.length ? el('ul', { className: 'verdict-notes verdict-library-nearest' }, library.nearest.map((n) =>
+      el('li', { text: `${n.label} — similarity ${n.similarityText}${n.postmortem ? ` — postmortem ${n.postmortem}` : ''}` }))) : null,
+  ]);
+}
 
 /**
  * The verdict as a person reads it under stress: the class (or "not sure"), the calibrated
  * probability with its estimative word, the runner-up, and the caution line — always shown.
  */
-export function renderVerdictHeader(root: HTMLElement, verdict: VerdictView, notes: readonly string[]): void {
+export function renderVerdictHeader(root: HTMLElement, verdict: VerdictView, notes: readonly string[], library?: LibraryView): void {
   const probability = el('span', { className: 'verdict-probability', text: verdict.probabilityText });
   root.replaceChildren(
     el('div', { className: `verdict ${verdict.isAbstained ? 'is-abstained' : ''}`, attrs: { 'data-class': verdict.className } }, [
@@ -17,6 +32,7 @@ export function renderVerdictHeader(root: HTMLElement, verdict: VerdictView, not
         document.createTextNode(`Runner-up: ${verdict.runnerUpTitle} ${verdict.runnerUpProbabilityText}.`),
         verdict.isAbstained && verdict.abstainReason ? document.createTextNode(` Reason: ${verdict.abstainReason}.`) : null,
       ]),
+      renderLibrary(library),
       el('p', { className: 'verdict-caution', attrs: { role: 'note' }, text: verdict.caution }),
       notes.length ? el('ul', { className: 'verdict-notes', attrs: { 'aria-label': 'Data caveats and open questions' } }, notes.map((n) => el('li', { text: n }))) : null,
     ]),

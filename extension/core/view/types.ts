@@ -76,6 +76,23 @@ export interface ContributionView {
   readonly valuesY: readonly (number | null)[];
 }
 
+/** One past incident of the team's library near the classified window. */
+export interface NearestIncidentView {
+  readonly label: string;
+  /** Cosine similarity of the embeddings, 3 significant digits. */
+  readonly similarityText: string;
+  /** Workspace-relative path or link of its postmortem; '' when none was recorded. */
+  readonly postmortem: string;
+}
+
+/** What the team's incident library says about the verdict; absent when no library was used. */
+export interface LibraryView {
+  /** "Matches your past incident <label> (n examples)" when a library class won; '' otherwise. */
+  readonly matchText: string;
+  /** Nearest past incidents, nearest first (may be empty). */
+  readonly nearest: readonly NearestIncidentView[];
+}
+
 /** Everything the webview shows after `init`. */
 export interface ViewerModel {
   readonly fileName: string;
@@ -91,6 +108,8 @@ export interface ViewerModel {
   readonly contributions: readonly ContributionView[];
   readonly findingId: string;
   readonly notes: readonly string[];
+  /** Present when the workspace has an incident library (added for the library flow). */
+  readonly library?: LibraryView;
 }
 
 /** What changes after the user moves a window: everything below the charts. */
@@ -101,4 +120,6 @@ export interface AnalysisUpdateView {
   readonly contributions: readonly ContributionView[];
   readonly findingId: string;
   readonly notes: readonly string[];
+  /** Present when the workspace has an incident library (added for the library flow). */
+  readonly library?: LibraryView;
 }

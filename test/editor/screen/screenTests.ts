@@ -4,10 +4,11 @@
  * person sees (text on screen, the editor's content), not internal state.
  */
 import assert from 'node:assert/strict';
-import { mkdirSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdirSync, writeFileSync } from 'node:fs';
 import { loadavg } from 'node:os';
 import { join } from 'node:path';
 import type { FrameLocator, Page } from 'playwright-core';
+import { renderIncidentExport } from '../fixtures/writeExport';
 
 export interface ScreenTestInput {
   readonly page: Page;
@@ -20,6 +21,17 @@ export interface ScreenTestInput {
 
 const EXPORT_NAME = 'basket-api-cpu-incident.csv';
 const POSTMORTEM_NAME = '2026-01-14-basket-checkout-slow.md';
+/** The same kind of fault three weeks later (another hour, other noise), written at test time. */
+const SIMILAR_EXPORT_NAME = 'basket-api-cpu-incident-2026-02-03.csv';
+const LIBRARY_LABEL = 'basket_cpu_starvation';
+
+async function waitForFile(file: string, timeoutMs: number): Promise<void> {
+  const until = Date.now() + timeoutMs;
+  while (!existsSync(file)) {
+    if (Date.now() > until) throw new Error(`expected ${file} to be written within ${timeoutMs} ms, got no file`);
+    await new Promise((resolve) => setTimeout(resolve, 200));
+  }
+}
 
 function webviewContent(page: Page): FrameLocator {
   return page.frameLocator('iframe.webview.ready').last().frameLocator('#active-frame');
@@ -99,12 +111,45 @@ export async function runScreenTests(input: ScreenTestInput): Promise<{ readonly
     await page.keyboard.press('Control+S');
     await runCommand(page, 'View: Close All Editors');
 
+    // Incident library: classify afresh (the suggested window), label it from the command palette
+    // as a person would (quick pick → new label → name), then classify a similar export.
+    await openInExplorerMenu(page, EXPORT_NAME, 'Classify Export');
+    await webviewContent(page).locator('#verdict-title').waitFor({ timeout: 120_000 });
+    await runCommand(page, 'Label Window for the Incident Library');
+    await page.locator('.quick-input-list .monaco-list-row', { hasText: 'New label' }).first().waitFor({ timeout: 20_000 });
+    await page.keyboard.press('Enter');
+    await page.locator('.quick-input-widget', { hasText: 'Name of this kind of incident' }).waitFor({ timeout: 20_000 });
+    await page.locator('.quick-input-widget input.input').fill(LIBRARY_LABEL);
+    await page.keyboard.press('Enter');
+    await waitForFile(join(input.workspace, '.metric-triage', 'incident-library.json'), 60_000);
+    await page.locator('.notifications-toasts', { hasText: `Saved this window as "${LIBRARY_LABEL}"` }).waitFor({ timeout: 20_000 })
+      .catch(() => log('label saved; its notification was not seen'));
+    await shot('04-window-labelled-for-library');
+    log(`window labelled "${LIBRARY_LABEL}"`);
+    await runCommand(page, 'View: Close All Editors');
+
+    writeFileSync(join(input.workspace, 'exports', SIMILAR_EXPORT_NAME),
+      renderIncidentExport({ seed: 20260203, startMs: Date.UTC(2026, 1, 3, 6, 0, 0), faultStartMinute: 150 }));
+    await page.locator('.explorer-folders-view .monaco-list-row', { hasText: SIMILAR_EXPORT_NAME }).waitFor({ timeout: 30_000 });
+    await openInExplorerMenu(page, SIMILAR_EXPORT_NAME, 'Classify Export');
+    const similarView = webviewContent(page);
+    await similarView.locator('.verdict-library-nearest li', { hasText: LIBRARY_LABEL }).waitFor({ timeout: 120_000 });
+    const nearestText = (await similarView.locator('.verdict-library-nearest li').first().textContent()) ?? '';
+    assert.match(nearestText, new RegExp(`^${LIBRARY_LABEL} — similarity \\d`), 'the nearest past incident is the labelled one');
+    const matchLine = similarView.locator('.verdict-library-match');
+    const matchText = (await matchLine.count()) > 0 ? (await matchLine.textContent()) ?? '' : '';
+    if (matchText) assert.equal(matchText, `Matches your past incident ${LIBRARY_LABEL} (1 example)`);
+    await similarView.locator('.verdict-caution', { hasText: 'not a root cause' }).waitFor();
+    await shot('05-similar-export-library-match');
+    log(`similar export: nearest "${nearestText}"${matchText ? `; "${matchText}"` : ''}`);
+    await runCommand(page, 'View: Close All Editors');
+
     await openInExplorerMenu(page, input.largeExportName, 'Open Metric Viewer');
     const body = webviewContent(page).locator('body[data-first-paint-ms]');
     await body.waitFor({ timeout: 300_000 });
     const initToFirstPaintMs = Number(await body.getAttribute('data-first-paint-ms'));
     const pageToFirstPaintMs = Number(await body.getAttribute('data-page-to-first-paint-ms'));
-    await shot('04-large-export-first-paint');
+    await shot('06-large-export-first-paint');
     log(`100×10,000 export: first paint ${initToFirstPaintMs} ms after init, ${pageToFirstPaintMs} ms after page start`);
     writeFileSync(join(artifactsDir, 'editor-first-paint.json'), JSON.stringify({
       initToFirstPaintMs, pageToFirstPaintMs, seriesCount: 100, pointCount: 10_000, measuredAt: new Date().toISOString(),
