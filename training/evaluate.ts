@@ -1,5 +1,5 @@
 /**
- * `npm run evaluate [-- --card] [--no-baselines] [--baseline-train N] [--baseline-epochs E]`: rebuilds the splits recorded in
+ * `npm run evaluate [-- --card] [--few-shot] [--no-baselines] [--baseline-train N] [--baseline-epochs E]`: rebuilds the splits recorded in
  * media/model/classifier.json, scores the bundled model through the real runtime (onnxruntime) on the
  * held-out simulated systems, trains and scores the baselines on the same data, and prints markdown
  * tables. With `--baseline-train N` the baselines (tfjs, slow on 2 cores) see only the first N training
@@ -113,6 +113,10 @@ function scoreOursOnSubset(train: readonly TrainingExample[], test: readonly Tra
 
 async function main(): Promise<void> {
   const argv = process.argv.slice(2);
+  if (argv.includes('--few-shot')) {
+    await (await import('./evaluateFewShot')).runFewShotEvaluation(argv.filter((a) => a !== '--few-shot'));
+    return;
+  }
   const log = (s: string): void => { process.stderr.write(`${s}\n`); };
   const spec = JSON.parse(readFileSync(join(MODEL_DIR, 'classifier.json'), 'utf8')) as { training: { seed: number; trainCount: number; calibrationCount: number; testCount: number; epochs: number } };
   const t = spec.training;
