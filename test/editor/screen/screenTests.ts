@@ -108,7 +108,10 @@ export async function runScreenTests(input: ScreenTestInput): Promise<{ readonly
     await page.locator('.monaco-editor .view-lines', { hasText: 'Metric evidence' }).waitFor({ timeout: 30_000 });
     await shot('03-findings-in-postmortem');
     log('findings block visible in the postmortem');
+    // Auto-save is off (as on the desktop): save by hand and wait until the tab is clean.
+    await page.locator('.monaco-editor .view-lines', { hasText: 'Metric evidence' }).click();
     await page.keyboard.press('Control+S');
+    await page.locator('.tabs-container .tab.active.dirty').waitFor({ state: 'detached', timeout: 20_000 });
     await runCommand(page, 'View: Close All Editors');
 
     // Incident library: classify afresh (the suggested window), label it from the command palette
