@@ -20,6 +20,7 @@ import { computeCalibratedLogProbabilities } from '../extension/core/model/class
 import { encodeBatch } from '../extension/core/model/encode';
 import { loadClassifierModel } from '../extension/runtime/onnxRunner';
 import { readFileSync } from 'node:fs';
+import { computeAccuracy, computeMacroF1, drawSupport, type EmbeddedExample } from './fewShotScoring';
 import { join } from 'node:path';
 import { buildFewShotSplits, buildSplits, createRandom, drawSystemSeeds, HELD_OUT_CLASSES, mixSeeds, sampleExamples, type SimClass, type TrainingExample } from './simulator';
 
@@ -55,55 +56,8 @@ async function loadEmbedder(modelDir: string): Promise<Embedder & { release(): P
   };
 }
 
-/** One example after the model: calibrated class probabilities and embedding. */
-interface EmbeddedExample {
-  readonly label: string;
-  readonly systemId: string;
-  readonly probabilities: Readonly<Record<string, number>>;
-  readonly embedding: Float64Array;
-}
 
-/**
- * Macro-averaged F1 over `classes` (one-vs-rest F1 per class, unweighted mean; a class with no
- * true and no predicted example counts 0, as scikit-learn does with zero_division=0). Predictions
- * outside `classes` (library labels) count as misses of the true class.
- */
-export function computeMacroF1(trueLabels: readonly string[], predicted: readonly string[], classes: readonly string[]): number {
-  if (trueLabels.length !== predicted.length) throw new Error(`expected as many predictions as labels, got ${predicted.length} and ${trueLabels.length}`);
-  let total = 0;
-  for (const c of classes) {
-    let tp = 0; let fp = 0; let fn = 0;
-    trueLabels.forEach((t, i) => {
-      const p = predicted[i];
-      if (t === c && p === c) tp += 1; else if (p === c) fp += 1; else if (t === c) fn += 1;
-    });
-    total += tp === 0 ? 0 : (2 * tp) / (2 * tp + fp + fn);
-  }
-  return classes.length === 0 ? 0 : total / classes.length;
-}
-
-/** Share of `predicted` equal to `trueLabels` (0 for empty input). */
-export function computeAccuracy(trueLabels: readonly string[], predicted: readonly string[]): number {
-  if (trueLabels.length === 0) return 0;
-  return trueLabels.filter((t, i) => predicted[i] === t).length / trueLabels.length;
-}
-
-/** Draw k support examples per class (without replacement), seeded. */
-export function drawSupport(support: readonly EmbeddedExample[], classes: readonly string[], k: number, seed: number): EmbeddedExample[] {
-  const rng = createRandom(seed);
-  const out: EmbeddedExample[] = [];
-  for (const c of classes) {
-    const pool = support.filter((e) => e.label === c);
-    if (pool.length < k) throw new Error(`expected at least ${k} support examples of ${c}, got ${pool.length}`);
-    const picked = [...pool];
-    for (let i = 0; i < k; i++) {
-      const j = i + Math.floor(rng.uniform(0, picked.length - i));
-      [picked[i], picked[j]] = [picked[j], picked[i]];
-    }
-    out.push(...picked.slice(0, k));
-  }
-  return out;
-}
+export { computeAccuracy, computeMacroF1, drawSupport };
 
 /** Blended predictions of `queries` against a support set. */
 function predictWithLibrary(queries: readonly EmbeddedExample[], support: readonly EmbeddedExample[], options: BlendOptions): string[] {

@@ -1,0 +1,53 @@
+/**
+ * Scoring helpers of the few-shot evaluation: macro-F1 over string labels (library labels may fall
+ * outside the scored classes), accuracy, and seeded support draws.
+ */
+import { computeClassScores, computeConfusionMatrix } from './metrics';
+import { createRandom } from './simulator';
+
+/** One example after the model: calibrated class probabilities and embedding. */
+export interface EmbeddedExample {
+  readonly label: string;
+  readonly systemId: string;
+  readonly probabilities: Readonly<Record<string, number>>;
+  readonly embedding: Float64Array;
+}
+
+/**
+ * Macro-averaged F1 over `classes` (one-vs-rest F1 per class, unweighted mean; a class with no
+ * true and no predicted example counts 0, as scikit-learn does with zero_division=0). Predictions
+ * outside `classes` (library labels) count as misses of the true class.
+ */
+export function computeMacroF1(trueLabels: readonly string[], predicted: readonly string[], classes: readonly string[]): number {
+  if (trueLabels.length !== predicted.length) throw new Error(`expected as many predictions as labels, got ${predicted.length} and ${trueLabels.length}`);
+  if (classes.length === 0) return 0;
+  // Labels outside `classes` share one extra row/column, so they count as misses without a score of their own.
+  const indexOf = (label: string): number => { const i = classes.indexOf(label); return i >= 0 ? i : classes.length; };
+  const confusion = computeConfusionMatrix(trueLabels.map(indexOf), predicted.map(indexOf), classes.length + 1);
+  const scores = computeClassScores(confusion).slice(0, classes.length);
+  return scores.reduce((sum, c) => sum + c.f1, 0) / classes.length;
+}
+
+/** Share of `predicted` equal to `trueLabels` (0 for empty input). */
+export function computeAccuracy(trueLabels: readonly string[], predicted: readonly string[]): number {
+  if (trueLabels.length === 0) return 0;
+  return trueLabels.filter((t, i) => predicted[i] === t).length / trueLabels.length;
+}
+
+/** Draw k support examples per class (without replacement), seeded. */
+export function drawSupport(support: readonly EmbeddedExample[], classes: readonly string[], k: number, seed: number): EmbeddedExample[] {
+  const rng = createRandom(seed);
+  const out: EmbeddedExample[] = [];
+  for (const c of classes) {
+    const pool = support.filter((e) => e.label === c);
+    if (pool.length < k) throw new Error(`expected at least ${k} support examples of ${c}, got ${pool.length}`);
+    const picked = [...pool];
+    for (let i = 0; i < k; i++) {
+      const j = i + Math.floor(rng.uniform(0, picked.length - i));
+      [picked[i], picked[j]] = [picked[j], picked[i]];
+    }
+    out.push(...picked.slice(0, k));
+  }
+  return out;
+}
+
