@@ -3,17 +3,10 @@
  * reproducible from one seed (Math.random is not seedable).
  */
 
+import { createMulberry32 } from '../../extension/core/random';
+
 /** Returns a mulberry32 generator: uniform floats in [0, 1), same sequence for the same seed. */
-export function createRandom(seed: number): () => number {
-  let state = seed >>> 0;
-  return () => {
-    state = (state + 0x6d2b79f5) >>> 0;
-    let t = state;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+export const createRandom = createMulberry32;
 
 /** Shuffles `items` in place (Fisher–Yates) with the given generator and returns it. */
 export function shuffleInPlace<T>(items: T[], random: () => number): T[] {

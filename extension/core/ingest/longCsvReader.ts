@@ -1,11 +1,12 @@
-import { CsvRowSplitter, detectDelimiter, findFieldBounds, splitPlainLine } from './csvRowSplitter';
+import { findFieldBounds, splitPlainLine } from './csvRowSplitter';
 import { parseDecimalRange } from './parseDecimalRange';
-import { FirstLineBuffer, findFirstLine, type ExportReader } from './exportReader';
+import type { ExportReader } from './exportReader';
+import { CsvFeed } from './csvFeed';
 import { IssueCollector, SeriesAccumulator, formatSeriesId, inferKindFromName } from './seriesAccumulator';
 import { parseLabelSet, parseSeriesHeader } from './seriesNames';
 import { TimeCellReader } from './timestamps';
 import type { IngestResult, RawSeries } from './types';
-import { CellStatus, ValueCellReader } from './valueCells';
+import { CellStatus } from './valueCells';
 import { TIME_COLUMN_NAMES, clip } from './wideCsvReader';
 
 /** Column roles recognised in a long CSV header (case-insensitive). */
@@ -49,17 +50,14 @@ export function createLongCsvReader(file: string): ExportReader {
 
 class LongCsvReader implements ExportReader {
   readonly #issues: IssueCollector;
-  readonly #firstLine = new FirstLineBuffer();
   readonly #timeReader = new TimeCellReader();
   /** Raw cell text key → series (fast path); several keys may share one series. */
   readonly #series = new Map<string, SeriesAccumulator>();
   readonly #byId = new Map<string, SeriesAccumulator>();
-  #cells = new ValueCellReader(false);
-  #delimiter = ',';
   #bounds = new Int32Array(64);
   /** Raw identity text (the fields between time and value, as written) → series, for the hot path. */
   readonly #plainSeries = new Map<string, SeriesAccumulator>();
-  #splitter: CsvRowSplitter | undefined;
+  readonly #feed = new CsvFeed((fields, line) => this.#onRow(fields, line), (text, start, end, line) => this.#onPlainLine(text, start, end, line));
   #layout: LongLayout | undefined;
 
   constructor(readonly file: string) {
@@ -67,26 +65,11 @@ class LongCsvReader implements ExportReader {
   }
 
   push(chunk: string): void {
-    if (this.#splitter !== undefined) { this.#splitter.push(chunk); return; }
-    const text = this.#firstLine.push(chunk);
-    if (text !== undefined) this.#start(text);
-  }
-
-  #start(text: string): void {
-    const delimiter = detectDelimiter(findFirstLine(text, true) ?? '');
-    this.#cells = new ValueCellReader(delimiter === ';');
-    this.#delimiter = delimiter;
-    this.#splitter = new CsvRowSplitter(delimiter, (fields, line) => this.#onRow(fields, line), (text, start, end, line) => this.#onPlainLine(text, start, end, line));
-    this.#splitter.push(text);
+    this.#feed.push(chunk);
   }
 
   finish(): IngestResult {
-    if (this.#splitter === undefined) {
-      const rest = this.#firstLine.flush();
-      if (rest.trim() !== '') this.#start(rest);
-    }
-    this.#splitter?.finish();
-    const lastLine = this.#splitter?.nextLine ?? 1;
+    const lastLine = this.#feed.finish();
     if (this.#layout === undefined) this.#issues.error(1, 'file is empty: expected a header line such as "time,name,value"');
     else if (this.#byId.size === 0) this.#issues.warning(lastLine, 'no data rows after the header');
     const series: RawSeries[] = [];
@@ -95,8 +78,8 @@ class LongCsvReader implements ExportReader {
       series.push(acc.toRawSeries());
     }
     const assumptions = this.#timeReader.describeAssumptions();
-    if (this.#cells.isDecimalComma) assumptions.push('";" delimiter: decimal commas read as decimal points');
-    if (this.#cells.hasConvertedUnits) assumptions.push('values written with units converted to base units (bytes, seconds)');
+    if (this.#feed.cells.isDecimalComma) assumptions.push('";" delimiter: decimal commas read as decimal points');
+    if (this.#feed.cells.hasConvertedUnits) assumptions.push('values written with units converted to base units (bytes, seconds)');
     return { file: this.file, format: 'long-csv', series, issues: this.#issues.finish(lastLine), assumptions };
   }
 
@@ -115,11 +98,11 @@ class LongCsvReader implements ExportReader {
     }
     const series = this.#findSeries(fields, layout, line);
     if (series === undefined) return;
-    const value = this.#cells.read(fields[layout.value]);
-    if (this.#cells.status === CellStatus.Invalid) {
+    const value = this.#feed.cells.read(fields[layout.value]);
+    if (this.#feed.cells.status === CellStatus.Invalid) {
       this.#issues.warning(line, `expected a number in column ${layout.value + 1}, got "${clip(fields[layout.value])}"; read as a gap`);
     }
-    series.noteUnit(layout.unit >= 0 ? fields[layout.unit].trim() : this.#cells.unit);
+    series.noteUnit(layout.unit >= 0 ? fields[layout.unit].trim() : this.#feed.cells.unit);
     series.add(timeMs, value);
   }
 
@@ -134,16 +117,16 @@ class LongCsvReader implements ExportReader {
     if (layout === undefined || layout.time !== 0 || layout.value !== layout.fieldCount - 1 || layout.unit >= 0) { this.#onSlowLine(text, start, end, line); return; }
     if (this.#bounds.length < layout.fieldCount + 8) this.#bounds = new Int32Array(layout.fieldCount * 2 + 8);
     const bounds = this.#bounds;
-    if (findFieldBounds(text, start, end, this.#delimiter, bounds) !== layout.fieldCount) { this.#onSlowLine(text, start, end, line); return; }
+    if (findFieldBounds(text, start, end, this.#feed.delimiter, bounds) !== layout.fieldCount) { this.#onSlowLine(text, start, end, line); return; }
     const valueStart = bounds[layout.value];
-    const value = parseDecimalRange(text, valueStart, end, this.#cells.isDecimalComma ? 44 : 46);
+    const value = parseDecimalRange(text, valueStart, end, this.#feed.cells.isDecimalComma ? 44 : 46);
     if (Number.isNaN(value)) { this.#onSlowLine(text, start, end, line); return; }
     const timeMs = this.#timeReader.readTimeMs(text.slice(start, bounds[1] - 1));
     if (Number.isNaN(timeMs)) { this.#onSlowLine(text, start, end, line); return; }
     const key = text.slice(bounds[1], valueStart - 1);
     let series = this.#plainSeries.get(key);
     if (series === undefined) {
-      series = this.#findSeries(splitPlainLine(text, start, end, this.#delimiter), layout, line);
+      series = this.#findSeries(splitPlainLine(text, start, end, this.#feed.delimiter), layout, line);
       if (series === undefined) return;
       this.#plainSeries.set(key, series);
     }
@@ -151,7 +134,7 @@ class LongCsvReader implements ExportReader {
   }
 
   #onSlowLine(text: string, start: number, end: number, line: number): void {
-    this.#onRow(splitPlainLine(text, start, end, this.#delimiter), line);
+    this.#onRow(splitPlainLine(text, start, end, this.#feed.delimiter), line);
   }
 
   #findSeries(fields: readonly string[], layout: LongLayout, line: number): SeriesAccumulator | undefined {

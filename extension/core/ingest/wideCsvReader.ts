@@ -1,6 +1,7 @@
-import { CsvRowSplitter, detectDelimiter, splitPlainLine } from './csvRowSplitter';
+import { splitPlainLine } from './csvRowSplitter';
 import { POWERS_OF_TEN } from './parseDecimalRange';
-import { FirstLineBuffer, findFirstLine, type ExportReader } from './exportReader';
+import type { ExportReader } from './exportReader';
+import { CsvFeed } from './csvFeed';
 import { IssueCollector, formatSeriesId, inferKindFromName } from './seriesAccumulator';
 import { parseSeriesHeader } from './seriesNames';
 import { TimeCellReader } from './timestamps';
@@ -30,19 +31,16 @@ export function createWideCsvReader(file: string): ExportReader {
 
 class WideCsvReader implements ExportReader {
   readonly #issues: IssueCollector;
-  readonly #firstLine = new FirstLineBuffer();
   /** Accepted rows; every column holds exactly one value per row, so one counter serves all. */
   #rowCount = 0;
   #times: Float64Array = new Float64Array(1024);
   /** Column values, one Float64Array per series column (same order as #columns). */
   #data: Float64Array[] = [];
   readonly #timeReader = new TimeCellReader();
-  #splitter: CsvRowSplitter | undefined;
-  #cells = new ValueCellReader(false);
+  readonly #feed = new CsvFeed((fields, line) => this.#onRow(fields, line), (text, start, end, line) => this.#onPlainLine(text, start, end, line));
   #columns: WideColumn[] | undefined;
   #timeIndex = 0;
   #expectedFields = 0;
-  #delimiter = ',';
   /** Field index of each series column, for the hot loop. */
   #fieldIndexes = new Int32Array(0);
   /** Reused field boundaries and fast-parsed values of the current line (no allocation per row). */
@@ -54,26 +52,11 @@ class WideCsvReader implements ExportReader {
   }
 
   push(chunk: string): void {
-    if (this.#splitter !== undefined) { this.#splitter.push(chunk); return; }
-    const text = this.#firstLine.push(chunk);
-    if (text !== undefined) this.#start(text);
-  }
-
-  #start(text: string): void {
-    const delimiter = detectDelimiter(findFirstLine(text, true) ?? '');
-    this.#cells = new ValueCellReader(delimiter === ';');
-    this.#delimiter = delimiter;
-    this.#splitter = new CsvRowSplitter(delimiter, (fields, line) => this.#onRow(fields, line), (text, start, end, line) => this.#onPlainLine(text, start, end, line));
-    this.#splitter.push(text);
+    this.#feed.push(chunk);
   }
 
   finish(): IngestResult {
-    if (this.#splitter === undefined) {
-      const rest = this.#firstLine.flush();
-      if (rest.trim() !== '') this.#start(rest);
-    }
-    this.#splitter?.finish();
-    const lastLine = this.#splitter?.nextLine ?? 1;
+    const lastLine = this.#feed.finish();
     if (this.#columns === undefined) this.#issues.error(1, 'file is empty: expected a header line such as "time,<series>,..."');
     else if (this.#rowCount === 0) this.#issues.warning(lastLine, 'no data rows after the header');
     return {
@@ -126,18 +109,18 @@ class WideCsvReader implements ExportReader {
    */
   #onPlainLine(text: string, start: number, end: number, line: number): void {
     const columns = this.#columns;
-    if (columns === undefined) { this.#onRow(splitPlainLine(text, start, end, this.#delimiter), line); return; }
+    if (columns === undefined) { this.#onRow(splitPlainLine(text, start, end, this.#feed.delimiter), line); return; }
     const expected = this.#expectedFields;
     if (this.#bounds.length < expected + 2) { this.#bounds = new Int32Array(expected * 2 + 8); this.#scratch = new Float64Array(expected * 2 + 8); }
     const bounds = this.#bounds;
     const scratch = this.#scratch;
-    const delimiterCode = this.#delimiter.charCodeAt(0);
-    const pointCode = this.#cells.isDecimalComma ? 44 : 46;
+    const delimiterCode = this.#feed.delimiter.charCodeAt(0);
+    const pointCode = this.#feed.cells.isDecimalComma ? 44 : 46;
     let field = 0;
     let i = start;
     bounds[0] = start;
     for (;;) {
-      if (field >= expected) { this.#onRow(splitPlainLine(text, start, end, this.#delimiter), line); return; }
+      if (field >= expected) { this.#onRow(splitPlainLine(text, start, end, this.#feed.delimiter), line); return; }
       // Inline exact decimal parse (≤ 15 significant digits, one division by an exact power of ten).
       let c = i < end ? text.charCodeAt(i) : -1;
       const isNegative = c === 45;
@@ -159,7 +142,7 @@ class WideCsvReader implements ExportReader {
           isInFraction = true;
         } else {
           isPlain = false;
-          const next = text.indexOf(this.#delimiter, i);
+          const next = text.indexOf(this.#feed.delimiter, i);
           i = next === -1 || next > end ? end : next;
           break;
         }
@@ -176,9 +159,9 @@ class WideCsvReader implements ExportReader {
       if (i >= end) break;
       i++;
     }
-    if (field !== expected) { this.#onRow(splitPlainLine(text, start, end, this.#delimiter), line); return; }
+    if (field !== expected) { this.#onRow(splitPlainLine(text, start, end, this.#feed.delimiter), line); return; }
     const timeMs = this.#timeReader.readTimeMs(text.slice(bounds[this.#timeIndex], bounds[this.#timeIndex + 1] - 1));
-    if (Number.isNaN(timeMs)) { this.#onRow(splitPlainLine(text, start, end, this.#delimiter), line); return; }
+    if (Number.isNaN(timeMs)) { this.#onRow(splitPlainLine(text, start, end, this.#feed.delimiter), line); return; }
     const row = this.#appendRow(timeMs);
     const data = this.#data;
     const fieldIndexes = this.#fieldIndexes;
@@ -191,7 +174,7 @@ class WideCsvReader implements ExportReader {
 
   /** Value of one cell through the general reader (units, markers, separators), noting problems. */
   #readCell(column: WideColumn, cell: string, line: number): number {
-    const cells = this.#cells;
+    const cells = this.#feed.cells;
     const value = cells.read(cell);
     if (cells.status === CellStatus.Invalid) {
       this.#issues.warning(line, `expected a number in column "${column.name}", got "${clip(cell)}"; read as a gap`);
@@ -253,8 +236,8 @@ class WideCsvReader implements ExportReader {
 
   #describeAssumptions(): string[] {
     const out = this.#timeReader.describeAssumptions();
-    if (this.#cells.isDecimalComma) out.push('";" delimiter: decimal commas read as decimal points');
-    if (this.#cells.hasConvertedUnits) out.push('values written with units converted to base units (bytes, seconds)');
+    if (this.#feed.cells.isDecimalComma) out.push('";" delimiter: decimal commas read as decimal points');
+    if (this.#feed.cells.hasConvertedUnits) out.push('values written with units converted to base units (bytes, seconds)');
     return out;
   }
 }
