@@ -52,7 +52,16 @@ async function openInExplorerMenu(page: Page, fileName: string, menuItem: string
   await row.click({ button: 'right' });
   const item = page.locator('.monaco-menu .action-item', { hasText: menuItem }).first();
   await item.waitFor({ state: 'visible' });
+  await item.hover();
   await item.click();
+  // When the explorer re-renders under the open menu (a file just appeared), the click can land
+  // while the item is only highlighted; the menu then stays open with that item focused.
+  const menu = page.locator('.monaco-menu');
+  const isClosed = await menu.waitFor({ state: 'hidden', timeout: 5_000 }).then(() => true, () => false);
+  if (!isClosed) {
+    await page.keyboard.press('Enter');
+    await menu.waitFor({ state: 'hidden', timeout: 5_000 });
+  }
 }
 
 /** Runs the steps in order; throws on the first failed expectation (after a screenshot). */
