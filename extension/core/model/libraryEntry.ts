@@ -57,16 +57,7 @@ export interface LibraryMetricInput {
 }
 
 /** Everything needed to make an entry; `embedding` comes from the classifier for these metrics. */
-export interface LibraryEntryInput {
-  readonly id: string;
-  readonly label: string;
-  readonly window: LibraryTimeSpan;
-  readonly baseline: LibraryTimeSpan;
-  readonly exportSha256: string;
-  readonly exportFile: string;
-  readonly postmortem?: string;
-  readonly createdMs: number;
-  readonly modelVersion: string;
+export interface LibraryEntryInput extends Omit<LibraryEntry, 'isBuiltInClass' | 'embedding' | 'metrics'> {
   readonly embedding: ArrayLike<number>;
   readonly metrics: readonly LibraryMetricInput[];
 }
