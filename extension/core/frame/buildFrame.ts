@@ -32,7 +32,7 @@ export class FrameTooLargeError extends Error {
  *   rates over their interval; both set `isConvertedToRate`. The first point of a rate is a gap.
  * - Gaps stay NaN (one missing grid point between two samples is forward-filled); `gapFraction`
  *   is the NaN share of each series.
- * - Families come from `inferFamily(name, unit)`.
+ * - Families come from `inferFamily(name, unit, labels)` (a 5xx status-code label reads as errors).
  * @throws FrameTooLargeError when grid points × series exceed `maxCells`.
  */
 export function buildFrame(result: IngestResult, options: BuildFrameOptions = {}): MetricFrame {
@@ -116,7 +116,7 @@ function alignOne(raw: RawSeries, plan: SamplePlan, gridIndex: Int32Array, lengt
     name: raw.name,
     labels: raw.labels,
     unit: isConvertedToRate ? `${raw.unit ?? '1'}/s` : raw.unit,
-    family: inferFamily(raw.name, raw.unit),
+    family: inferFamily(raw.name, raw.unit, raw.labels),
     kind: raw.kind,
     isConvertedToRate,
     values: onGrid,

@@ -12,7 +12,8 @@ const RULES: ReadonlyArray<readonly [Family, RegExp]> = [
   ['runtime', /(^|_)(gc|goroutines?|eventloop|event_loop|threads?|heap_objects|jvm|fds|file_descriptors?|uptime|restarts?)(_|$)/],
   ['traffic', /(^|_)(requests?|rps|qps|throughput|hits|calls|messages|ops|operations|transactions|sessions|active_requests|arrivals)(_|$)/],
   ['network', /(^|_)(net|network|rx|tx|receive|received|transmit|transmitted|packets?|retrans\w*|tcp|udp|socket|sockstat|bandwidth|dropped|drops?|interface|bytes_(in|out)|network_in|network_out)(_|$)/],
-  ['filesystem', /(^|_)(filesystem|fs_(usage|size|avail|free|limit|inodes)|inodes?|avail_bytes|disk_(free|used|usage)|volume|capacity)(_|$)/],
+  // Space/free/used next to disk or fs is capacity, not I/O ("Disk space free GB (/)", "free_disk_space").
+  ['filesystem', /(^|_)(filesystem|fs_(usage|size|avail|free|limit|inodes)|inodes?|avail_bytes|disk_(free|used|usage)|(disk|fs)_(space|free|used|avail|available)|(space|free|used|avail|available)_(disk|fs)|volume|capacity)(_|$)/],
   ['disk', /(^|_)(disk|io|iops|iowait|io_wait|io_time|read_bytes|written_bytes|write_bytes|reads|writes|blkio|block|nvme|sda|ebs)(_|$)/],
   ['memory', /(^|_)(mem|memory|rss|heap|working_set|swap|pgmajfault|page_faults?|paging|cache|cached|buffers|memavailable|memfree|oom)(_|$)/],
   ['cpu', /(^|_)(cpu|cpus|steal|user|system|idle|softirq|irq|nice|utilization|utilisation|usage_percent|cores)(_|$)/],
@@ -28,14 +29,53 @@ export function normalizeMetricName(name: string): string {
 }
 
 /**
- * Family of a metric from its name (and unit, as a fallback hint). Never throws; unknown names
- * give 'other'. "workload" does not match cpu/load because rules match whole tokens.
+ * Label keys that carry an HTTP status code: OpenTelemetry `http.response.status_code` (and the
+ * pre-1.21 `http.status_code`), their Prometheus translations with `_`, and the common short keys.
  */
-export function inferFamily(name: string, unit?: string): Family {
+const STATUS_CODE_LABELS: ReadonlySet<string> = new Set([
+  'code', 'status', 'status_code', 'http_status_code', 'http.status_code',
+  'http.response.status_code', 'http_response_status_code',
+]);
+
+/** A server-error status value: `500`…`599`, or a class written as `5xx` / `5XX`. */
+const SERVER_ERROR_STATUS = /^5([0-9]{2}|xx)$/i;
+
+/**
+ * Time-to-expiry tokens (certificates, TTLs). Their values are in seconds but they are not
+ * response times, so the unit fallback must not turn them into latency.
+ */
+const EXPIRY_TOKENS = /(^|_)(cert|certs|certificate|certificates|x509|expiry|expiration|expires|expire|expired|not_after|not_before|ttl)(_|$)/;
+
+/** True when some status-code label holds a 5xx value; other labels are ignored. */
+function hasServerErrorStatus(labels: Readonly<Record<string, string>>): boolean {
+  for (const [key, value] of Object.entries(labels)) {
+    if (STATUS_CODE_LABELS.has(key.toLowerCase()) && SERVER_ERROR_STATUS.test(value.trim())) return true;
+  }
+  return false;
+}
+
+/**
+ * Family of a metric from its name, its labels and its unit. Never throws; unknown names give
+ * 'other'. Rules match whole tokens, so "workload" does not match cpu/load.
+ * - A status-code label (`code`, `status`, `status_code`, `http_status_code`, `http.status_code`,
+ *   `http.response.status_code`, `http_response_status_code`) holding `5..` or `5xx` gives
+ *   'errors' whatever the name: `http_server_requests_total{code="500"}` is errors, with
+ *   `code="200"` it stays traffic. Other labels (e.g. `mode` of `node_cpu_seconds_total`) do not
+ *   change the family.
+ * - The unit is only a fallback when no name rule matches: `s`/`ms`/`seconds` → 'latency',
+ *   `By`/`bytes` → 'memory' — except for certificate/expiry/TTL names, which give 'other'.
+ * @param name metric name as exported (dotted, snake_case or free text)
+ * @param unit unit as written by the source; undefined or empty when unknown
+ * @param labels series labels / attributes; absent or empty means the name alone decides
+ * @returns one of FAMILIES
+ */
+export function inferFamily(name: string, unit?: string, labels?: Readonly<Record<string, string>>): Family {
+  if (labels !== undefined && hasServerErrorStatus(labels)) return 'errors';
   const token = normalizeMetricName(name);
   for (const [family, rule] of RULES) {
     if (rule.test(token)) return family;
   }
+  if (EXPIRY_TOKENS.test(token)) return 'other';
   const u = (unit ?? '').toLowerCase();
   if (u === 's' || u === 'ms' || u === 'seconds') return 'latency';
   if (u === 'by' || u === 'bytes') return 'memory';
