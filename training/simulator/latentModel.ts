@@ -141,15 +141,19 @@ export function deriveObservables(p: ServiceParams, d: Drivers, baseTraffic: Flo
     const poolDemand = p.poolBaseRatio * loadRatio * (dependency / p.dependencyLatencyS) * (d.poolHold[i] as number);
     const poolUse = Math.min(1, poolDemand);
     const overflow = Math.max(0, poolDemand - 1);
-    const poolWait = overflow > 0 ? dependency * overflow * 2 : 0.0005 * rng.next();
+    const poolJitter = rng.next(); // drawn always: the draw count must not depend on the drivers
+    const poolWait = overflow > 0 ? dependency * overflow * 2 : 0.0005 * poolJitter;
     const client = dependency + poolWait;
     const ownWork = p.serverLatencyS * (1 - p.dependencyShare) * cpuFactor * (1 + p.persistenceShare * (diskFactor - 1) * 0.3) * (1 + 2 * steal);
     const server = (ownWork + p.dependencyShare * client / Math.max(1e-9, p.dependencyLatencyS) * p.serverLatencyS) * (d.latencyScale[i] as number) * Math.exp(0.7 * (slow[i] as number));
     // Timeouts only once requests run far past their usual time (and only in some systems).
     const timeoutErrors = Math.min(0.5, p.timeoutSensitivity * Math.max(0, server / p.serverLatencyS - 8) + 0.3 * p.timeoutSensitivity * 10 * Math.min(1, overflow));
     const errorRatio = clamp(p.errorBaseRatio * Math.exp(0.4 * rng.normal()) + (d.errorExtra[i] as number) + timeoutErrors + p.lossErrorShare * (d.lossFraction[i] as number), 0, 1);
+    // Drawn on every step, so the number of draws does not depend on the drivers: a counterfactual
+    // run without the fault (same generator state) then sees exactly the same noise.
+    const restartDraw = rng.next();
     if ((d.restart[i] as number) > 0) {
-      uptimeS = stepS * rng.next();
+      uptimeS = stepS * restartDraw;
       restarts += 1;
     } else {
       uptimeS += stepS;

@@ -22,6 +22,8 @@ export interface Random {
   studentT(dof: number): number;
   /** Student-t with 2 degrees of freedom in closed form (one uniform): cheap heavy tails. */
   studentT2(): number;
+  /** An independent generator at the same state: it yields the same sequence as this one from here. */
+  clone(): Random;
 }
 
 /** Mixes several integers into one 32-bit seed (splitmix-style avalanche), order-sensitive. */
@@ -83,7 +85,11 @@ function getNormalTable(): Float64Array {
 
 /** Creates a deterministic generator; the same seed always gives the same sequence. */
 export function createRandom(seed: number): Random {
-  let state = seed >>> 0;
+  return createRandomAtState(seed >>> 0);
+}
+
+function createRandomAtState(initialState: number): Random {
+  let state = initialState | 0;
   const table = getNormalTable();
   const next = (): number => {
     state = (state + 0x6d2b79f5) | 0;
@@ -117,5 +123,6 @@ export function createRandom(seed: number): Random {
       }
       return normal() / Math.sqrt(chi2 / dof);
     },
+    clone: () => createRandomAtState(state),
   };
 }

@@ -5,7 +5,7 @@
  */
 import { applyBenignEvent, drawBenignEvents, type BenignKind } from './benignEvents';
 import { applyFault, type FaultPlan } from './faults';
-import { createDrivers, deriveObservables, drawAr1, drawBaseTraffic, type Observables } from './latentModel';
+import { createDrivers, deriveObservables, drawAr1, drawBaseTraffic, DRIVER_KEYS, type DriverKey, type Drivers, type Observables } from './latentModel';
 import type { Random } from './random';
 import type { SeriesSpec, SystemSpec } from './systemSpec';
 import type { SimSeries, SimSystem } from './types';
@@ -18,7 +18,18 @@ export interface RenderRequest {
   readonly benignPerStep: number;
   /** Benign events at chosen places (used to put harmless bumps inside normal windows). */
   readonly benignEvents?: ReadonlyArray<{ readonly kind: BenignKind; readonly at: number }>;
+  /** Also derive the observables without the faults (same noise), to measure what a fault moved. */
+  readonly keepCounterfactual?: boolean;
 }
+
+/** Observables with and without the faults, drawn from the same noise (see measureFaultEvidence). */
+export interface CounterfactualObservables {
+  readonly faulted: Observables;
+  readonly counterfactual: Observables;
+}
+
+/** A rendered system; `observables` is set when the request asked for the counterfactual. */
+export type RenderedSystem = SimSystem & { readonly observables?: CounterfactualObservables };
 
 const RATIO_SOURCES = new Set(['cpu', 'steal', 'iowait', 'idle', 'throttle', 'mem', 'memAvailable', 'diskBusy', 'errorRatio', 'successRatio', 'poolUse']);
 
@@ -110,16 +121,20 @@ function punchGaps(values: Float64Array, probability: number, rng: Random): void
 }
 
 /** Renders `spec` on a grid of `lengthSteps` steps starting at `startMs` with the given faults. */
-export function renderSystem(spec: SystemSpec, request: RenderRequest, rng: Random): SimSystem {
+export function renderSystem(spec: SystemSpec, request: RenderRequest, rng: Random): RenderedSystem {
   const n = request.lengthSteps;
   const timesMs = new Float64Array(n);
   for (let i = 0; i < n; i += 1) timesMs[i] = request.startMs + i * spec.stepMs;
   const drivers = createDrivers(n);
   drawBenignEvents(drivers, rng, request.benignPerStep);
   for (const event of request.benignEvents ?? []) applyBenignEvent(drivers, event.kind, event.at, rng);
+  const quietDrivers = request.keepCounterfactual ? copyDrivers(drivers) : undefined;
   for (const plan of request.faults) applyFault(drivers, plan, spec.params, rng);
   const baseTraffic = drawBaseTraffic(spec.params, rng, timesMs, spec.stepMs);
+  // The counterfactual replays the same generator state, so only the fault differs between the two.
+  const quietRng = quietDrivers ? rng.clone() : undefined;
   const o = deriveObservables(spec.params, drivers, baseTraffic, rng, spec.stepMs);
+  const quiet = quietDrivers && quietRng ? deriveObservables(spec.params, quietDrivers, baseTraffic, quietRng, spec.stepMs) : undefined;
   const sharedNoise = new Map<string, Float64Array>();
   const quanta = new Map<string, number>();
   const logTail = new Float64Array(n);
@@ -149,5 +164,12 @@ export function renderSystem(spec: SystemSpec, request: RenderRequest, rng: Rand
     .filter((f) => f.label !== 'normal')
     .map((f) => ({ label: f.label, startIndex: f.startIndex, endIndex: Math.min(n - 1, f.endIndex) }))
     .sort((a, b) => a.startIndex - b.startIndex);
-  return { id: spec.id, seed: spec.seed, namingStyle: spec.namingStyle, stepMs: spec.stepMs, timesMs, series, incidents };
+  const system: SimSystem = { id: spec.id, seed: spec.seed, namingStyle: spec.namingStyle, stepMs: spec.stepMs, timesMs, series, incidents };
+  return quiet ? { ...system, observables: { faulted: o, counterfactual: quiet } } : system;
+}
+
+function copyDrivers(d: Drivers): Drivers {
+  const out = {} as Record<DriverKey, Float64Array>;
+  for (const key of DRIVER_KEYS) out[key] = Float64Array.from(d[key]);
+  return out;
 }

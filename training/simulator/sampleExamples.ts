@@ -8,6 +8,7 @@ import { CLASSES } from '../../extension/core/model/types';
 import type { MetricWindow } from '../../extension/core/model/types';
 import { BENIGN_KINDS, QUIET_WINDOW_KINDS } from './benignEvents';
 import { convertCounterToRates } from './counterRates';
+import { measureFaultEvidence } from './faultEvidence';
 import type { FaultPlan } from './faults';
 import { createRandom, mixSeeds, type Random } from './random';
 import { renderSystem } from './renderSystem';
@@ -37,13 +38,23 @@ export interface Difficulty {
   readonly randomDropProbability?: number;
   /** Share of faults with intensity 0.15–0.4 instead of 0.4–1; default 0.3. */
   readonly weakFaultShare?: number;
+  /**
+   * Least fault evidence (measureFaultEvidence: how far the fault moved the most-moved exported
+   * metric, in baseline noise units) for a fault example; a draw below it is redrawn (a fault that
+   * moved nothing exported looks exactly like a quiet period). Default 3; 0 keeps every draw.
+   */
+  readonly minFaultEvidence?: number;
 }
 
 interface ResolvedDifficulty {
   readonly keyMetricDropProbability: number;
   readonly randomDropProbability: number;
   readonly weakFaultShare: number;
+  readonly minFaultEvidence: number;
 }
+
+/** Draws per fault example before the last one is kept whatever its evidence (rare: see README). */
+const MAX_EVIDENCE_ATTEMPTS = 12;
 
 function resolveDifficulty(d: Difficulty | undefined): ResolvedDifficulty {
   const resolved = {
@@ -54,7 +65,9 @@ function resolveDifficulty(d: Difficulty | undefined): ResolvedDifficulty {
   for (const [key, value] of Object.entries(resolved)) {
     if (!(value >= 0 && value <= 1)) throw new Error(`sampleExamples: expected difficulty.${key} in [0, 1], got ${value}`);
   }
-  return resolved;
+  const minFaultEvidence = d?.minFaultEvidence ?? 3;
+  if (!(minFaultEvidence >= 0 && Number.isFinite(minFaultEvidence))) throw new Error(`sampleExamples: expected difficulty.minFaultEvidence as a finite number >= 0, got ${minFaultEvidence}`);
+  return { ...resolved, minFaultEvidence };
 }
 
 /** Typical incident durations, ms (log-uniform between the bounds). */
@@ -88,12 +101,12 @@ const KEY_ROLES: Readonly<Record<SimClass, readonly string[]>> = {
 const BASE_TIME_MS = Date.UTC(2026, 0, 5);
 
 const familyCache = new Map<string, Family>();
-/** inferFamily is pure, and the same few hundred names recur in every example. */
-function inferFamilyCached(name: string, unit: string | undefined): Family {
-  const key = `${name}\u0000${unit ?? ''}`;
+/** inferFamily is pure, and the same few hundred names and label sets recur in every example. */
+function inferFamilyCached(name: string, unit: string | undefined, labels: Readonly<Record<string, string>>): Family {
+  const key = `${name}\u0000${unit ?? ''}\u0000${JSON.stringify(labels)}`;
   let family = familyCache.get(key);
   if (family === undefined) {
-    family = inferFamily(name, unit);
+    family = inferFamily(name, unit, labels);
     familyCache.set(key, family);
   }
   return family;
@@ -163,9 +176,21 @@ function chooseKept(spec: SystemSpec, label: SimClass, rng: Random, difficulty: 
   return keep;
 }
 
-/** Draws one example of class `label` from system `spec`. */
+/**
+ * Draws one example of class `label` from system `spec`. A fault example whose fault stays inside
+ * the noise of every exported metric (evidence below difficulty.minFaultEvidence) is drawn again
+ * from the same generator, up to MAX_EVIDENCE_ATTEMPTS times; the example records its evidence.
+ */
 export function sampleOneExample(spec: SystemSpec, label: SimClass, rng: Random, windowRange: readonly [number, number], baselineRange: readonly [number, number], difficulty: Difficulty = {}): TrainingExample {
   const knobs = resolveDifficulty(difficulty);
+  const isChecked = label !== 'normal' && knobs.minFaultEvidence > 0;
+  for (let attempt = 1; ; attempt += 1) {
+    const example = drawExample(spec, label, rng, windowRange, baselineRange, knobs, isChecked);
+    if (!isChecked || (example.faultEvidence as number) >= knobs.minFaultEvidence || attempt >= MAX_EVIDENCE_ATTEMPTS) return example;
+  }
+}
+
+function drawExample(spec: SystemSpec, label: SimClass, rng: Random, windowRange: readonly [number, number], baselineRange: readonly [number, number], knobs: ResolvedDifficulty, isChecked: boolean): TrainingExample {
   const windowSteps = drawLength(rng, windowRange);
   const baselineSteps = Math.floor(Math.min(baselineRange[1], Math.max(baselineRange[0], rng.logUniform(baselineRange[0], baselineRange[1] + 1))));
   const layout = planLayout(spec, label, rng, windowSteps, baselineSteps, knobs.weakFaultShare);
@@ -178,7 +203,7 @@ export function sampleOneExample(spec: SystemSpec, label: SimClass, rng: Random,
   const kept = spec.series.filter((_, k) => keep[k]);
   const system = renderSystem({ ...spec, series: kept }, {
     lengthSteps: layout.lengthSteps, startMs, faults: layout.fault ? [layout.fault] : [],
-    benignPerStep: rng.uniform(0, 1 / 100), benignEvents,
+    benignPerStep: rng.uniform(0, 1 / 100), benignEvents, keepCounterfactual: isChecked,
   }, rng);
   const metrics: MetricWindow[] = [];
   const truth: MetricTruth[] = [];
@@ -187,13 +212,16 @@ export function sampleOneExample(spec: SystemSpec, label: SimClass, rng: Random,
     const values = isCounter ? convertCounterToRates(s.values, system.stepMs) : s.values;
     metrics.push({
       id: (kept[k] as SeriesSpec).id,
-      family: inferFamilyCached(s.name, s.unit),
+      family: inferFamilyCached(s.name, s.unit, s.labels),
       baseline: values.slice(layout.baselineStart, layout.baselineStart + baselineSteps),
       window: values.slice(layout.windowStart, layout.windowStart + windowSteps),
     });
-    truth.push({ role: s.role ?? 'unknown', trueFamily: s.trueFamily, isCounter, name: s.name, unit: s.unit });
+    truth.push({ role: s.role ?? 'unknown', trueFamily: s.trueFamily, isCounter, name: s.name, unit: s.unit, labels: s.labels });
   });
-  return { label, systemId: spec.id, metrics, truth, stepMs: spec.stepMs, namingStyle: spec.namingStyle };
+  const faultEvidence = system.observables
+    ? measureFaultEvidence(metrics.map((m, k) => ({ spec: kept[k] as SeriesSpec, baseline: m.baseline })), system.observables, layout.windowStart, windowSteps)
+    : undefined;
+  return { label, systemId: spec.id, metrics, truth, stepMs: spec.stepMs, namingStyle: spec.namingStyle, ...(faultEvidence !== undefined ? { faultEvidence } : {}) };
 }
 
 /**

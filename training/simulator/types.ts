@@ -13,7 +13,7 @@ export interface SimSeries {
   readonly labels: Readonly<Record<string, string>>;
   readonly unit?: string;
   readonly kind: 'gauge' | 'counter';
-  /** The simulator's own truth, for checks only; models see inferFamily(name, unit). */
+  /** The simulator's own truth, for checks only; models see inferFamily(name, unit, labels). */
   readonly trueFamily: Family;
   /** Catalogue role (what the metric measures, e.g. `cpuUtil`, `serverLatency`); simulator truth. */
   readonly role?: string;
@@ -49,6 +49,8 @@ export interface TrainingExample {
   /** Grid step of the system the example came from. */
   readonly stepMs?: number;
   readonly namingStyle?: NamingStyle;
+  /** Fault examples: how far the fault moved the most-moved exported metric, in baseline noise units. */
+  readonly faultEvidence?: number;
 }
 
 /** What the simulator knows about one metric of an example; never a model input. */
@@ -60,4 +62,6 @@ export interface MetricTruth {
   /** Metric name without labels, and unit as exported (inference sees these two). */
   readonly name: string;
   readonly unit?: string;
+  /** Labels as exported (inference reads a status-code label too). */
+  readonly labels?: Readonly<Record<string, string>>;
 }

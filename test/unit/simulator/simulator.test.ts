@@ -80,7 +80,7 @@ describe('simulator: determinism and shape', () => {
         const truth = e.truth?.[k];
         assert.ok(truth !== undefined);
         assert.ok(m.id.startsWith(truth.name), m.id);
-        assert.equal(m.family, inferFamily(truth.name, truth.unit), m.id);
+        assert.equal(m.family, inferFamily(truth.name, truth.unit, truth.labels), m.id);
       });
     }
   });
