@@ -3,16 +3,32 @@
  * `type` exhaustively; the host runs `isFromWebview` on everything it receives first, because a
  * webview is untrusted input as far as the host is concerned.
  */
-import type { AnalysisUpdateView, ViewerModel, WindowRangeView } from './core/view/types';
+import type { AnalysisUpdateView, LibraryView, VerdictView, ViewerModel, WindowRangeView } from './core/view/types';
 
 export type {
-  AnalysisUpdateView, ContributionView, SeriesGroupView, SeriesView, TimelineView, VerdictView, ViewerModel, WindowRangeView,
+  AnalysisUpdateView, ContributionView, LibraryView, NearestIncidentView, SeriesGroupView, SeriesView, TimelineView, VerdictView, ViewerModel, WindowRangeView,
 } from './core/view/types';
+
+/**
+ * The verdict header after the incident library changed: the verdict re-blended with the library
+ * (windows, charts and contributions are unchanged, so they are not sent again).
+ */
+export interface LibraryUpdateView {
+  readonly findingId: string;
+  readonly verdict: VerdictView;
+  readonly notes: readonly string[];
+  /** Absent when the export's workspace has no incident library (any more). */
+  readonly library?: LibraryView;
+}
+
+/** Longest entry id the host accepts from the webview (ids look like `20261202T014000Z-3f9a1c`). */
+export const MAX_ENTRY_ID_LENGTH = 200;
 
 /** Host → webview: what to show. */
 export type ToWebview =
   | { readonly type: 'init'; readonly model: ViewerModel }
   | { readonly type: 'update'; readonly update: AnalysisUpdateView }
+  | { readonly type: 'libraryUpdate'; readonly update: LibraryUpdateView }
   | { readonly type: 'busy'; readonly isBusy: boolean; readonly message: string }
   | { readonly type: 'showError'; readonly message: string };
 
@@ -21,7 +37,9 @@ export type FromWebview =
   | { readonly type: 'ready' }
   | { readonly type: 'selectWindow'; readonly incident: WindowRangeView; readonly baseline: WindowRangeView }
   | { readonly type: 'requestInsert'; readonly findingId: string }
-  | { readonly type: 'reportTiming'; readonly name: string; readonly durationMs: number };
+  | { readonly type: 'reportTiming'; readonly name: string; readonly durationMs: number }
+  /** Open a nearest past incident: its postmortem, else its export (the host decides from the entry). */
+  | { readonly type: 'openLibraryEntry'; readonly entryId: string };
 
 /** For exhaustive switches: a compile error when a message type is not handled. */
 export function assertNever(value: never): never {
@@ -56,6 +74,9 @@ export function isFromWebview(value: unknown): value is FromWebview {
       return typeof value.findingId === 'string' && value.findingId.length > 0 && value.findingId.length <= 200;
     case 'reportTiming':
       return typeof value.name === 'string' && value.name.length <= 100 && isFiniteNumber(value.durationMs) && value.durationMs >= 0;
+    case 'openLibraryEntry':
+      // Only the shape is checked here; whether the id exists is the host's question (the library may have changed).
+      return typeof value.entryId === 'string' && value.entryId.length > 0 && value.entryId.length <= MAX_ENTRY_ID_LENGTH;
     default:
       return false;
   }

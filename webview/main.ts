@@ -122,6 +122,12 @@ function onMessage(message: ToWebview): void {
       renderTableView(tableRoot, message.update.contributions);
       document.body.dataset.updateCount = String(Number(document.body.dataset.updateCount ?? '0') + 1);
       return;
+    case 'libraryUpdate':
+      // Only the verdict header changes: the library moved the blend, not the windows or the charts.
+      if (state.model) state.model = { ...state.model, verdict: message.update.verdict, notes: message.update.notes, library: message.update.library };
+      renderVerdictHeader(verdictRoot, message.update.verdict, message.update.notes, message.update.library);
+      document.body.dataset.libraryUpdateCount = String(Number(document.body.dataset.libraryUpdateCount ?? '0') + 1);
+      return;
     case 'busy':
       busy.textContent = message.isBusy ? message.message : '';
       document.body.classList.toggle('is-busy', message.isBusy);

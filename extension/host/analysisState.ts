@@ -1,6 +1,7 @@
 import * as vscode from 'vscode';
 import type { AnalysisResult } from './analysisTypes';
 import { Disposable } from './util/dispose';
+import type { ViewerLibrary } from './viewerLibrary';
 
 /** The latest analysis of one export, as the user last saw it. */
 export interface AnalysisRecord {
@@ -17,6 +18,25 @@ export class AnalysisState extends Disposable {
   #latest: AnalysisRecord | undefined;
   readonly #onDidChange = this._register(new vscode.EventEmitter<AnalysisRecord>());
   readonly onDidChange = this.#onDidChange.event;
+  readonly #onDidChangeLibrary = this._register(new vscode.EventEmitter<void>());
+  /** The incident library file changed (a command saved it, or someone else edited it): viewers re-blend. */
+  readonly onDidChangeLibrary = this.#onDidChangeLibrary.event;
+  #library: ViewerLibrary | undefined;
+
+  /** The incident library as viewers use it; undefined until the library feature is registered. */
+  get library(): ViewerLibrary | undefined {
+    return this.#library;
+  }
+
+  /** Called by the library wiring once; disposing the result detaches it. */
+  attachLibrary(library: ViewerLibrary): vscode.Disposable {
+    this.#library = library;
+    return new vscode.Disposable(() => { if (this.#library === library) this.#library = undefined; });
+  }
+
+  notifyLibraryChanged(): void {
+    this.#onDidChangeLibrary.fire();
+  }
 
   get latest(): AnalysisRecord | undefined {
     return this.#latest;
@@ -36,4 +56,27 @@ export class AnalysisState extends Disposable {
     this.#latest = record;
     this.#onDidChange.fire(record);
   }
+
+  /**
+   * Replace the analysis of an export in place after its verdict was re-blended with the library
+   * (same window, same finding id). It stays the latest only if it was; listeners are told only
+   * then, since the status bar shows the latest verdict.
+   */
+  replace(record: AnalysisRecord): void {
+    const key = record.exportUri.toString();
+    const stored = this.#byExport.get(key);
+    // A re-blend of an older window must not overwrite a newer analysis of the same export.
+    if (!stored || !isSameWindow(stored.result, record.result)) return;
+    this.#byExport.set(key, record);
+    if (this.#latest === stored) {
+      this.#latest = record;
+      this.#onDidChange.fire(record);
+    }
+  }
+}
+
+function isSameWindow(a: AnalysisResult, b: AnalysisResult): boolean {
+  const { incident: ai, baseline: ab } = a.finding;
+  const { incident: bi, baseline: bb } = b.finding;
+  return a.frame === b.frame && ai.startIndex === bi.startIndex && ai.endIndex === bi.endIndex && ab.startIndex === bb.startIndex && ab.endIndex === bb.endIndex;
 }

@@ -41,6 +41,11 @@ export interface LibraryCommandDeps {
   readonly loadModel: () => Promise<{ readonly modelVersion: string; readonly embed: EmbedMetricWindows }>;
   /** Told after each saved change, so open editors can re-blend their verdicts. */
   readonly onLibraryChanged?: (document: LibraryDocument) => void;
+  /**
+   * Opens an entry's postmortem (else its export) after checking the path stays in the workspace;
+   * the viewer's links use the same. Without it "Open postmortem" opens the recorded path as is.
+   */
+  readonly openEntry?: (entryId: string) => Promise<unknown>;
 }
 
 /**
@@ -162,10 +167,14 @@ async function pickEntry(deps: LibraryCommandDeps, placeHolder: string): Promise
 async function manageLibrary(deps: LibraryCommandDeps): Promise<void> {
   const entry = await pickEntry(deps, 'Incident library: pick an entry');
   if (entry === undefined) return;
-  const action = await vscode.window.showQuickPick(['Rename label', 'Delete entry', ...(entry.postmortem ? ['Open postmortem'] : [])], { placeHolder: `${entry.label} (${entry.id})` });
+  const openAction = entry.postmortem ? `Open postmortem ${entry.postmortem}` : `Open export ${entry.exportFile} (no postmortem recorded)`;
+  const action = await vscode.window.showQuickPick(['Rename label', 'Delete entry', openAction], { placeHolder: `${entry.label} (${entry.id})` });
   if (action === 'Rename label') await renameEntry(deps, entry.id);
   else if (action === 'Delete entry') await deleteEntry(deps, entry.id);
-  else if (action === 'Open postmortem' && entry.postmortem) await vscode.commands.executeCommand('vscode.open', toUri(entry.postmortem));
+  else if (action === openAction) {
+    if (deps.openEntry) await deps.openEntry(entry.id);
+    else if (entry.postmortem) await vscode.commands.executeCommand('vscode.open', toUri(entry.postmortem));
+  }
 }
 
 async function renameEntry(deps: LibraryCommandDeps, id: string | undefined): Promise<void> {

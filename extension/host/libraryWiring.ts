@@ -3,6 +3,18 @@ import { loadClassifierModel, type LoadedClassifier } from '../runtime/onnxRunne
 import type { HostDeps } from './analysisTypes';
 import type { AnalysisState } from './analysisState';
 import { registerLibraryCommands, toLibraryModel, type ActiveLibraryWindow } from './libraryCommands';
+import { describeOpenViewers, OPEN_LIBRARY_ENTRY_COMMAND } from './metricsViewer';
+import { ViewerLibrary } from './viewerLibrary';
+
+/** Internal command (hidden from the palette) the editor tests read the viewers' headers through. */
+export const DESCRIBE_VIEWERS_COMMAND = '_metricTriage.describeViewerLibraries';
+
+/** `{ entryId, exportUri? }` of the open-entry command; undefined when the argument is not that shape. */
+function readOpenEntryArgument(arg: unknown): { entryId: string; exportUri?: vscode.Uri } | undefined {
+  if (typeof arg !== 'object' || arg === null || !('entryId' in arg) || typeof arg.entryId !== 'string') return undefined;
+  const exportUri = 'exportUri' in arg && arg.exportUri instanceof vscode.Uri ? arg.exportUri : undefined;
+  return { entryId: arg.entryId, ...(exportUri ? { exportUri } : {}) };
+}
 
 type LibraryModel = ReturnType<typeof toLibraryModel>;
 
@@ -35,12 +47,35 @@ function getActiveWindow(state: AnalysisState): ActiveLibraryWindow | undefined 
  */
 export function registerIncidentLibrary(context: vscode.ExtensionContext, deps: HostDeps, state: AnalysisState): vscode.Disposable {
   let model: Promise<LoadedClassifier> | undefined;
+  const loadClassifier = (): Promise<LoadedClassifier> => {
+    model ??= loadClassifierModel(vscode.Uri.joinPath(deps.extensionUri, 'media', 'model').fsPath);
+    // A failed load is not cached: the next use tries again.
+    model.catch(() => { model = undefined; });
+    return model;
+  };
   // The version recorded in entries must be the one analyzeExport matches against (spec version +
   // ONNX sha256), else every entry labelled here would count as stale and never match.
-  const loadModel = async (): Promise<LibraryModel> => {
-    model ??= loadClassifierModel(vscode.Uri.joinPath(deps.extensionUri, 'media', 'model').fsPath);
-    return toLibraryModel(await model);
-  };
-  const commands = registerLibraryCommands(context, { resolveLibraryPath, getActiveWindow: async () => getActiveWindow(state), loadModel });
-  return vscode.Disposable.from(commands, { dispose: () => { void model?.then((m) => m.runner.release()); } });
+  const loadModel = async (): Promise<LibraryModel> => toLibraryModel(await loadClassifier());
+  const viewerLibrary = new ViewerLibrary(state, loadClassifier);
+  const commands = registerLibraryCommands(context, {
+    resolveLibraryPath, getActiveWindow: async () => getActiveWindow(state), loadModel,
+    onLibraryChanged: () => viewerLibrary.scheduleRefresh(),
+    openEntry: (entryId) => viewerLibrary.openEntry(entryId),
+  });
+  const openEntry = vscode.commands.registerCommand(OPEN_LIBRARY_ENTRY_COMMAND, async (arg: unknown) => {
+    const parsed = readOpenEntryArgument(arg);
+    if (!parsed) {
+      console.warn('metric-triage: ignored an open-library-entry request without an entry id', arg);
+      return undefined;
+    }
+    try {
+      return await viewerLibrary.openEntry(parsed.entryId, parsed.exportUri);
+    } catch (error) {
+      void vscode.window.showErrorMessage(`Incident library: ${error instanceof Error ? error.message : String(error)}`);
+      return undefined;
+    }
+  });
+  const describe = vscode.commands.registerCommand(DESCRIBE_VIEWERS_COMMAND, () => describeOpenViewers());
+  return vscode.Disposable.from(commands, openEntry, describe, state.attachLibrary(viewerLibrary), viewerLibrary,
+    { dispose: () => { void model?.then((m) => m.runner.release(), () => undefined); } });
 }

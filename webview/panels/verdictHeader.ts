@@ -1,18 +1,39 @@
-import type { VerdictView } from '../../extension/protocol';
-import type { LibraryView } from '../../extension/core/view/types';
+import type { LibraryView, NearestIncidentView, VerdictView } from '../../extension/protocol';
 import { el } from '../dom';
+import { post } from '../vscodeApi';
+
+/**
+ * One nearest past incident: its label and similarity, then a button that opens what the entry
+ * records — its postmortem, else its export — naming the path it opens. A native <button> takes
+ * Enter/Space and clicks alike, and screen readers announce it as one. Items the host could not
+ * tie to a library entry stay plain text.
+ */
+function renderNearest(n: NearestIncidentView): HTMLElement {
+  const text = `${n.label} — similarity ${n.similarityText}`;
+  if (!n.entryId || !n.opensKind || !n.opensPath) {
+    return el('li', { text: `${text}${n.postmortem ? ` — postmortem ${n.postmortem}` : ''}` });
+  }
+  const entryId = n.entryId;
+  const action = n.opensKind === 'postmortem' ? `postmortem ${n.opensPath}` : `export ${n.opensPath}`;
+  const link = el('button', {
+    className: 'library-link',
+    text: n.opensKind === 'postmortem' ? `postmortem ${n.opensPath}` : `export ${n.opensPath} (no postmortem recorded)`,
+    attrs: { type: 'button', 'data-entry-id': entryId, 'data-opens': n.opensKind, title: `Open the ${action}`, 'aria-label': `Open the ${action} of past incident ${n.label}` },
+  });
+  link.addEventListener('click', () => post({ type: 'openLibraryEntry', entryId }));
+  return el('li', {}, [document.createTextNode(`${text} — `), link]);
+}
 
 /**
  * The team's incident library under the verdict: the match line (a library class won the blended
- * verdict) and the nearest past incidents with their postmortems. Null when no library was used.
+ * verdict) and the nearest past incidents, each opening its postmortem. Null when no library was used.
  */
 function renderLibrary(library: LibraryView | undefined): HTMLElement | null {
   if (!library || (library.matchText === '' && library.nearest.length === 0)) return null;
   return el('section', { className: 'verdict-library', attrs: { 'aria-label': 'Incident library' } }, [
     library.matchText ? el('p', { className: 'verdict-library-match', text: library.matchText }) : null,
     library.nearest.length ? el('p', { className: 'verdict-kicker', text: 'Similar past incidents' }) : null,
-    library.nearest.length ? el('ul', { className: 'verdict-notes verdict-library-nearest' }, library.nearest.map((n) =>
-      el('li', { text: `${n.label} — similarity ${n.similarityText}${n.postmortem ? ` — postmortem ${n.postmortem}` : ''}` }))) : null,
+    library.nearest.length ? el('ul', { className: 'verdict-notes verdict-library-nearest' }, library.nearest.map(renderNearest)) : null,
   ]);
 }
 

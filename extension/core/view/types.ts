@@ -83,6 +83,15 @@ export interface NearestIncidentView {
   readonly similarityText: string;
   /** Workspace-relative path or link of its postmortem; '' when none was recorded. */
   readonly postmortem: string;
+  /**
+   * Library entry id the webview sends back to open the entry (added for the library links).
+   * Absent when the host could not tie the incident to an entry: the item is then plain text.
+   */
+  readonly entryId?: string;
+  /** What the link opens: the postmortem, or the export file when no postmortem was recorded. */
+  readonly opensKind?: 'postmortem' | 'export';
+  /** The path the link opens, as recorded in the library (shown beside the link). */
+  readonly opensPath?: string;
 }
 
 /** What the team's incident library says about the verdict; absent when no library was used. */
