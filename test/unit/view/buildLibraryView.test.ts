@@ -1,6 +1,7 @@
 import assert from 'node:assert/strict';
 import type { Finding } from '../../../extension/core/report/types';
-import { buildLibraryView } from '../../../extension/core/view/buildLibraryView';
+import type { NearestIncident } from '../../../extension/core/model/libraryVerdict';
+import { buildLibraryView, buildNearestIncidentLink } from '../../../extension/core/view/buildLibraryView';
 
 const T0 = Date.UTC(2026, 1, 3, 8, 30, 0);
 
@@ -51,5 +52,41 @@ describe('buildLibraryView', () => {
   it('shows a non-finite similarity as n/a, never NaN', () => {
     const view = buildLibraryView(makeFinding({ nearestIncidents: [{ label: 'basket_cpu_starvation', similarity: Number.NaN }] }));
     assert.equal(view?.nearest[0].similarityText, 'n/a');
+  });
+
+  describe('with the nearest entries the host re-blended (links)', () => {
+    const nearest: NearestIncident[] = [
+      { id: '20260114T130000Z-3f9a1c', label: 'basket_cpu_starvation', squaredDistance: 0.01, cosineSimilarity: 0.99312, exportFile: 'basket-api-cpu-incident.csv',
+        window: { startMs: T0, endMs: T0 + 60_000 }, postmortem: 'postmortems/2026-01-14-basket-checkout-slow.md' },
+      { id: '20260120T080000Z-0b1c2d', label: 'pantry_pool_exhaustion', squaredDistance: 0.4, cosineSimilarity: 0.41, exportFile: 'exports/pantry-db-2026-01-20.csv',
+        window: { startMs: T0, endMs: T0 + 60_000 } },
+    ];
+
+    it('links each incident to its postmortem, or to its export when none was recorded, keeping the order', () => {
+      const view = buildLibraryView(makeFinding({ nearestIncidents: [] }), nearest);
+      assert.ok(view);
+      assert.deepEqual(view.nearest, [
+        { label: 'basket_cpu_starvation', similarityText: '0.993', postmortem: 'postmortems/2026-01-14-basket-checkout-slow.md',
+          entryId: '20260114T130000Z-3f9a1c', opensKind: 'postmortem', opensPath: 'postmortems/2026-01-14-basket-checkout-slow.md' },
+        { label: 'pantry_pool_exhaustion', similarityText: '0.410', postmortem: '',
+          entryId: '20260120T080000Z-0b1c2d', opensKind: 'export', opensPath: 'exports/pantry-db-2026-01-20.csv' },
+      ]);
+    });
+
+    it('takes the linked list over the finding\'s plain one, and shows an empty library as an empty list', () => {
+      const finding = makeFinding({ nearestIncidents: [{ label: 'stale_label', similarity: 0.5 }] });
+      assert.deepEqual(buildLibraryView(finding, [])?.nearest, []);
+      assert.equal(buildLibraryView(makeFinding({}), [])?.matchText, '');
+    });
+
+    it('treats an empty postmortem string as none and links the export (JSON cannot tell them apart in old files)', () => {
+      const link = buildNearestIncidentLink({ ...nearest[0], postmortem: '' });
+      assert.equal(link.opensKind, 'export');
+      assert.equal(link.opensPath, 'basket-api-cpu-incident.csv');
+    });
+
+    it('shows a NaN similarity as n/a in links too', () => {
+      assert.equal(buildNearestIncidentLink({ ...nearest[0], cosineSimilarity: Number.NaN }).similarityText, 'n/a');
+    });
   });
 });
