@@ -2,6 +2,9 @@ import assert from 'node:assert/strict';
 import { createHash } from 'node:crypto';
 import * as vscode from 'vscode';
 import { parseLibraryText } from '../../../extension/core/model/libraryDocument';
+import { applyLibraryChange, serializeLibrary } from '../../../extension/core/model/librarySerialize';
+import type { ViewerLibrarySnapshot } from '../../../extension/host/metricsViewer';
+import type { OpenEntryOutcome } from '../../../extension/host/viewerLibrary';
 import type { LibraryEntry } from '../../../extension/core/model/libraryTypes';
 import type { Finding } from '../../../extension/core/report/types';
 import type { InsertOutcome } from '../../../extension/host/postmortemWriter';
@@ -11,6 +14,32 @@ import { getFixtureUris } from './fixturePaths';
 /** The team's own name for the fixture's fault (not a built-in class), as a person would type it. */
 const LABEL = 'basket_cpu_starvation';
 const SIMILAR_EXPORT = 'basket-api-cpu-incident-2026-02-03.csv';
+/** A second label, given while the viewer of the similar export stays open. */
+const SECOND_LABEL = 'basket_cpu_starvation_recurring';
+const SECOND_POSTMORTEM = 'postmortems/2026-02-03-basket-cpu-again.md';
+/** Internal commands (hidden from the palette): the viewers' last header, and the header's link action. */
+const DESCRIBE_VIEWERS = '_metricTriage.describeViewerLibraries';
+const OPEN_ENTRY = '_metricTriage.openLibraryEntry';
+
+/**
+ * Wait until `read` gives a value `isDone` accepts; polls, since the viewer refresh is an event in
+ * the extension, not something a test can await. Fails with the last value seen.
+ */
+async function waitFor<T>(read: () => Thenable<T> | Promise<T>, isDone: (value: T) => boolean, what: string, timeoutMs = 60_000): Promise<T> {
+  const deadline = Date.now() + timeoutMs;
+  let last: T = await read();
+  while (!isDone(last)) {
+    if (Date.now() > deadline) throw new Error(`timed out after ${timeoutMs} ms waiting for ${what}; last seen ${JSON.stringify(last)}`);
+    await new Promise((resolve) => setTimeout(resolve, 100));
+    last = await read();
+  }
+  return last;
+}
+
+async function readViewer(exportUri: vscode.Uri): Promise<ViewerLibrarySnapshot | undefined> {
+  const all = await vscode.commands.executeCommand<ViewerLibrarySnapshot[]>(DESCRIBE_VIEWERS);
+  return all.find((v) => v.exportUri === exportUri.toString());
+}
 
 async function readDisk(uri: vscode.Uri): Promise<Uint8Array> {
   return vscode.workspace.fs.readFile(uri);
@@ -35,6 +64,7 @@ describe('Incident library in a real editor (trusted workspace)', () => {
     // Leave the workspace as the other suites expect it: no library, no extra export.
     await vscode.workspace.fs.delete(libraryDir, { recursive: true, useTrash: false }).then(undefined, () => undefined);
     await vscode.workspace.fs.delete(similarUri, { useTrash: false }).then(undefined, () => undefined);
+    await vscode.workspace.fs.delete(vscode.Uri.joinPath(folder, SECOND_POSTMORTEM), { useTrash: false }).then(undefined, () => undefined);
     await vscode.commands.executeCommand('workbench.action.closeAllEditors');
   });
 
@@ -103,5 +133,46 @@ describe('Incident library in a real editor (trusted workspace)', () => {
       await vscode.window.showTextDocument(doc);
       await vscode.commands.executeCommand('workbench.action.revertAndCloseActiveEditor');
     }
+  });
+
+  it('refreshes the open viewer when the library changes, and its link opens the postmortem', async () => {
+    // The similar export's viewer is open from the previous test; its header links the first entry.
+    await vscode.commands.executeCommand('vscode.openWith', similarUri, 'metricTriage.metricsEditor', { preview: false });
+    const before = await waitFor(() => readViewer(similarUri), (v) => (v?.library?.nearest ?? []).some((n) => n.label === LABEL && n.entryId),
+      `the viewer of ${SIMILAR_EXPORT} to link ${LABEL}`);
+    assert.ok(before);
+    const first = before.library?.nearest.find((n) => n.label === LABEL);
+    assert.deepEqual([first?.opensKind, first?.opensPath], ['postmortem', 'postmortems/2026-01-14-basket-checkout-slow.md']);
+
+    // Label the same window again with a new postmortem open beside it, through the command.
+    const secondUri = vscode.Uri.joinPath(folder, SECOND_POSTMORTEM);
+    await vscode.workspace.fs.writeFile(secondUri, new TextEncoder().encode('# Basket checkout slow again (Larkspur Provisions)\n\n## Supporting information\n'));
+    await vscode.window.showTextDocument(secondUri, { viewColumn: vscode.ViewColumn.Beside, preserveFocus: true, preview: false });
+    const entry = await vscode.commands.executeCommand<LibraryEntry | undefined>('metricTriage.labelWindow', { label: SECOND_LABEL });
+    assert.ok(entry, 'expected the second entry to be saved');
+    assert.equal(entry.postmortem, SECOND_POSTMORTEM);
+    const refreshed = await waitFor(() => readViewer(similarUri), (v) => (v?.library?.nearest ?? []).some((n) => n.entryId === entry.id),
+      `the open viewer to list ${SECOND_LABEL}`);
+    assert.ok(refreshed && refreshed.libraryUpdateCount > before.libraryUpdateCount, 'a library refresh of the same viewer, not a reopened one');
+    const linked = refreshed.library?.nearest.find((n) => n.entryId === entry.id);
+    assert.deepEqual([linked?.label, linked?.opensKind, linked?.opensPath], [SECOND_LABEL, 'postmortem', SECOND_POSTMORTEM]);
+
+    // The link opens that postmortem in an editor.
+    await vscode.commands.executeCommand('workbench.action.closeEditorsInOtherGroups');
+    const opened = await vscode.commands.executeCommand<OpenEntryOutcome>(OPEN_ENTRY, { entryId: entry.id, exportUri: similarUri });
+    assert.equal(opened?.status, 'opened', JSON.stringify(opened));
+    assert.equal(vscode.window.activeTextEditor?.document.uri.toString(), secondUri.toString());
+    // An id the library does not hold is ignored (logged), never an error.
+    const unknown = await vscode.commands.executeCommand<OpenEntryOutcome>(OPEN_ENTRY, { entryId: '20990101T000000Z-ffffff', exportUri: similarUri });
+    assert.equal(unknown?.status, 'unknown');
+
+    // Another window removes the entry by editing the file: the watcher refreshes the viewer too.
+    const current = parseLibraryText(new TextDecoder().decode(await readDisk(libraryUri)), libraryUri.fsPath).document;
+    assert.ok(current);
+    await vscode.workspace.fs.writeFile(libraryUri, new TextEncoder().encode(serializeLibrary(applyLibraryChange(current, { removeIds: [entry.id] }))));
+    const afterRemoval = await waitFor(() => readViewer(similarUri), (v) => !(v?.library?.nearest ?? []).some((n) => n.entryId === entry.id),
+      `the open viewer to drop ${SECOND_LABEL} after the file changed on disk`);
+    assert.ok(afterRemoval && afterRemoval.libraryUpdateCount > refreshed.libraryUpdateCount);
+    console.log(`[editor-suite]     viewer refreshes: ${afterRemoval.libraryUpdateCount}; nearest now ${afterRemoval.library?.nearest.map((n) => n.label).join(', ')}`);
   });
 });
