@@ -125,6 +125,7 @@ function onMessage(message: ToWebview): void {
     case 'libraryUpdate':
       // Only the verdict header changes: the library moved the blend, not the windows or the charts.
       if (state.model) state.model = { ...state.model, verdict: message.update.verdict, notes: message.update.notes, library: message.update.library };
+      errorBox.textContent = '';
       renderVerdictHeader(verdictRoot, message.update.verdict, message.update.notes, message.update.library);
       document.body.dataset.libraryUpdateCount = String(Number(document.body.dataset.libraryUpdateCount ?? '0') + 1);
       return;

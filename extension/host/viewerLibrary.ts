@@ -4,6 +4,7 @@
  * window and kept), tells the viewers when the library file changes (from a command here or from
  * anyone else editing the file), and opens a nearest incident's postmortem or export.
  */
+import { realpath } from 'node:fs/promises';
 import * as vscode from 'vscode';
 import type { IndexWindow, MetricFrame } from '../core/frame/types';
 import { createClassifier } from '../core/model/classifier';
@@ -70,7 +71,27 @@ export class ViewerLibrary extends Disposable {
   scheduleRefresh(): void {
     if (this.isDisposed) return;
     clearTimeout(this.#refreshTimer);
-    this.#refreshTimer = setTimeout(() => { this.#refreshTimer = undefined; this.state.notifyLibraryChanged(); }, REFRESH_DEBOUNCE_MS);
+    this.#refreshTimer = setTimeout(() => {
+      this.#refreshTimer = undefined;
+      this.state.notifyLibraryChanged();
+      void this.#refreshLatest();
+    }, REFRESH_DEBOUNCE_MS);
+  }
+
+  /**
+   * Re-blend the latest analysis too, whether or not a viewer shows it: "insert findings" writes
+   * that one, and its nearest incidents should be the library's current ones. Failures are logged;
+   * the open viewers report them to the user.
+   */
+  async #refreshLatest(): Promise<void> {
+    const latest = this.state.latest;
+    if (!latest) return;
+    try {
+      const linked = await this.reblend(latest.exportUri, latest.result);
+      if (linked && !this.isDisposed) this.state.replace({ exportUri: latest.exportUri, result: linked.result });
+    } catch (error) {
+      console.warn('metric-triage: the latest finding keeps its earlier library blend:', error);
+    }
   }
 
   async #computeBase(result: AnalysisResult): Promise<BaseVerdict> {
@@ -131,6 +152,9 @@ export class ViewerLibrary extends Disposable {
     let uri = vscode.Uri.file(target.absolutePath);
     if (!(await exists(uri)) && kind === 'export') uri = await this.#findExportByName(folder, link) ?? uri;
     if (!(await exists(uri))) return this.#warn('missing', `Incident library entry ${entry.id} (${entry.label}): its ${kind} ${link} is not in the workspace (looked for ${uri.fsPath}).`);
+    // A symbolic link inside the folder may point out of it: check where it really leads.
+    const real = resolveLibraryLink(await realpath(uri.fsPath), await realpath(folder.uri.fsPath));
+    if (real.kind === 'outside') return this.#warn('refused', `Incident library entry ${entry.id} (${entry.label}): not opening its ${kind}: ${link} is a link that ${real.reason.replace(/^\S+ /, '')}.`);
     if (kind === 'postmortem') await vscode.commands.executeCommand('vscode.open', uri, { preview: false, viewColumn: vscode.ViewColumn.Beside });
     else await vscode.commands.executeCommand('vscode.openWith', uri, 'metricTriage.metricsEditor', { preview: false, viewColumn: vscode.ViewColumn.Beside });
     return { status: 'opened', kind, uri };
