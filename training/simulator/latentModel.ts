@@ -64,13 +64,39 @@ export type Observables = Record<ObservableKey, Float64Array>;
 
 /** Fresh drivers for `n` steps: scales at 1, extras at 0. */
 export function createDrivers(n: number): Drivers {
-  const drivers = {} as Record<DriverKey, Float64Array>;
-  for (const key of DRIVER_KEYS) {
-    const arr = new Float64Array(n);
-    if (key === 'trafficScale' || key === 'cpuScale' || key === 'latencyScale' || key === 'poolHold') arr.fill(1);
-    drivers[key] = arr;
-  }
-  return drivers;
+  // One object literal: V8 keeps it in fast (hidden-class) mode, which the per-step loops need.
+  const zeros = (): Float64Array => new Float64Array(n);
+  const ones = (): Float64Array => new Float64Array(n).fill(1);
+  return {
+    trafficScale: ones(), cpuExtra: zeros(), cpuScale: ones(), steal: zeros(), memExtra: zeros(), memLeak: zeros(), diskExtra: zeros(),
+    callerDelayS: zeros(), dependencyDelayS: zeros(), lossFraction: zeros(), errorExtra: zeros(), latencyScale: ones(),
+    poolHold: ones(), restart: zeros(), tailExtra: zeros(),
+  };
+}
+
+/** Copies of every driver series (the same keys in the same order as createDrivers). */
+export function copyDrivers(d: Drivers): Drivers {
+  return {
+    trafficScale: d.trafficScale.slice(), cpuExtra: d.cpuExtra.slice(), cpuScale: d.cpuScale.slice(), steal: d.steal.slice(),
+    memExtra: d.memExtra.slice(), memLeak: d.memLeak.slice(), diskExtra: d.diskExtra.slice(), callerDelayS: d.callerDelayS.slice(),
+    dependencyDelayS: d.dependencyDelayS.slice(), lossFraction: d.lossFraction.slice(), errorExtra: d.errorExtra.slice(),
+    latencyScale: d.latencyScale.slice(), poolHold: d.poolHold.slice(), restart: d.restart.slice(), tailExtra: d.tailExtra.slice(),
+  };
+}
+
+/**
+ * Zeroed observables for `n` steps. An object literal, not keys added in a loop: V8 turns an
+ * object grown by more than a dozen computed-key stores into a hash table, and every
+ * `o.cpu[i]` in the render loops then becomes a dictionary lookup.
+ */
+export function createObservables(n: number): Observables {
+  const z = (): Float64Array => new Float64Array(n);
+  return {
+    traffic: z(), cpu: z(), steal: z(), iowait: z(), idle: z(), load: z(), throttle: z(), mem: z(), memAvailable: z(), gc: z(),
+    diskBusy: z(), diskQueue: z(), diskLatency: z(), diskBytes: z(), netBytes: z(), retrans: z(), drops: z(),
+    serverLatency: z(), clientLatency: z(), callerLatency: z(), tail: z(), errorRatio: z(), successRatio: z(),
+    errorRate: z(), poolUse: z(), poolPending: z(), poolWait: z(), uptime: z(), restarts: z(), threads: z(), inflight: z(),
+  };
 }
 
 /** AR(1) noise with stationary standard deviation `sigma` (phi = memory per step). */
@@ -104,6 +130,111 @@ export function drawBaseTraffic(p: ServiceParams, rng: Random, timesMs: Float64A
   return out;
 }
 
+/** Random draws of one step, in the order the step has always taken them (see drawStep). */
+const DRAWS_PER_STEP = 13;
+
+/**
+ * Takes one step's random draws. The count and order never depend on the drivers, so a
+ * counterfactual without the fault sees exactly the same noise, and the draws can be taken once
+ * and used for both.
+ */
+function drawStep(rng: Random, r: Float64Array): void {
+  r[0] = rng.normal(); // steal jitter
+  r[1] = rng.next(); // usable share of capacity
+  r[2] = rng.next(); // iowait spread
+  r[3] = rng.next(); // pool wait jitter, drawn always
+  r[4] = rng.normal(); // error ratio noise
+  r[5] = rng.next(); // time since a restart
+  r[6] = rng.normal(); // load noise
+  r[7] = rng.next(); // throttle spread
+  r[8] = rng.normal(); // retransmit noise
+  r[9] = rng.normal(); // drop noise
+  r[10] = rng.chance(0.01) ? rng.uniform(0, 3) : 0; // stray drops
+  r[11] = rng.studentT2(); // latency tail
+  r[12] = rng.chance(0.02) ? 1 : 0; // stray pending connection
+}
+
+/** Slow noise series shared by every step (drawn once per render). */
+interface StepNoise {
+  readonly baseTraffic: Float64Array;
+  readonly cpu: Float64Array;
+  readonly mem: Float64Array;
+  readonly disk: Float64Array;
+  readonly slow: Float64Array;
+}
+
+/** Writes every observable except uptime and restarts (the only ones that carry state across steps) at step `i`. */
+function writeStep(p: ServiceParams, d: Drivers, i: number, noise: StepNoise, r: Float64Array, o: Observables): void {
+  const traffic = (noise.baseTraffic[i] as number) * (d.trafficScale[i] as number);
+  const loadRatio = traffic / p.requestRatePerS;
+  const mem = clamp(p.memBaseRatio * Math.exp(noise.mem[i] as number) + (d.memExtra[i] as number) + (d.memLeak[i] as number), 0.02, 0.995);
+  const gcPressure = Math.max(0, mem - 0.7) / 0.3;
+  const steal = clamp((d.steal[i] as number) + 0.004 * Math.abs(r[0] as number), 0, 0.9);
+  const demand = Math.max(0.003, ((p.cpuBase + p.cpuPerLoad * loadRatio) * Math.exp((noise.cpu[i] as number) + (noise.slow[i] as number)) + 0.25 * gcPressure * gcPressure) * (d.cpuScale[i] as number) + (d.cpuExtra[i] as number));
+  const capacity = 1 - steal;
+  const cpu = Math.min(demand, capacity * (0.97 + 0.025 * (r[1] as number)));
+  const rho = demand / capacity;
+  const cpuFactor = 1 + p.queueSensitivity * Math.max(0, rho - 0.6) ** 2 / Math.max(0.04, 1 - rho) + 3 * Math.max(0, rho - 1);
+  const diskBusy = clamp((p.diskBase + p.diskPerLoad * loadRatio) * Math.exp(noise.disk[i] as number) + (d.diskExtra[i] as number), 0.001, 0.999);
+  const diskFactor = 1 / Math.max(0.03, 1 - diskBusy);
+  const iowait = clamp(0.002 + 0.35 * diskBusy ** 4 * (0.8 + 0.4 * (r[2] as number)), 0, 1 - cpu);
+  const dependency = p.dependencyLatencyS * (1 + 0.2 * gcPressure) + (d.dependencyDelayS[i] as number);
+  const poolDemand = p.poolBaseRatio * loadRatio * (dependency / p.dependencyLatencyS) * (d.poolHold[i] as number);
+  const poolUse = Math.min(1, poolDemand);
+  const overflow = Math.max(0, poolDemand - 1);
+  const poolJitter = r[3] as number;
+  const poolWait = overflow > 0 ? dependency * overflow * 2 : 0.0005 * poolJitter;
+  const client = dependency + poolWait;
+  const ownWork = p.serverLatencyS * (1 - p.dependencyShare) * cpuFactor * (1 + p.persistenceShare * (diskFactor - 1) * 0.3) * (1 + 2 * steal);
+  const server = (ownWork + p.dependencyShare * client / Math.max(1e-9, p.dependencyLatencyS) * p.serverLatencyS) * (d.latencyScale[i] as number) * Math.exp(0.7 * (noise.slow[i] as number));
+  // Timeouts only once requests run far past their usual time (and only in some systems).
+  const timeoutErrors = Math.min(0.5, p.timeoutSensitivity * Math.max(0, server / p.serverLatencyS - 8) + 0.3 * p.timeoutSensitivity * 10 * Math.min(1, overflow));
+  const errorRatio = clamp(p.errorBaseRatio * Math.exp(0.4 * (r[4] as number)) + (d.errorExtra[i] as number) + timeoutErrors + p.lossErrorShare * (d.lossFraction[i] as number), 0, 1);
+  o.traffic[i] = traffic;
+  o.cpu[i] = cpu;
+  o.steal[i] = steal;
+  o.iowait[i] = iowait;
+  o.idle[i] = Math.max(0, 1 - cpu - iowait - steal);
+  o.load[i] = p.cores * (cpu + iowait * 2 + Math.max(0, rho - 0.95) * 4) * (1 + 0.1 * (r[6] as number) ** 2);
+  o.throttle[i] = clamp(Math.max(0, rho - 0.85) * 3, 0, 1) * (0.8 + 0.2 * (r[7] as number));
+  o.mem[i] = mem;
+  o.memAvailable[i] = 1 - mem;
+  o.gc[i] = (0.05 + 0.2 * loadRatio) * (1 + 6 * gcPressure * gcPressure);
+  o.diskBusy[i] = diskBusy;
+  o.diskQueue[i] = diskBusy * diskFactor;
+  o.diskLatency[i] = 0.002 * diskFactor;
+  o.diskBytes[i] = 4096 * (200 * diskBusy + 20 * loadRatio);
+  o.netBytes[i] = traffic * p.bytesPerRequest * (1 - 3 * (d.lossFraction[i] as number));
+  o.retrans[i] = traffic * (p.retransPerRequest * Math.exp(0.5 * (r[8] as number)) + 20 * (d.lossFraction[i] as number));
+  o.drops[i] = traffic * 8 * (d.lossFraction[i] as number) * Math.exp(0.3 * (r[9] as number)) + (r[10] as number);
+  o.serverLatency[i] = server;
+  o.clientLatency[i] = client;
+  o.callerLatency[i] = server + 0.002 + (d.callerDelayS[i] as number);
+  o.tail[i] = 1 + 0.5 * p.tailSigma * Math.abs(r[11] as number) + (d.tailExtra[i] as number);
+  o.errorRatio[i] = errorRatio;
+  o.successRatio[i] = 1 - errorRatio;
+  o.errorRate[i] = errorRatio * traffic;
+  o.poolUse[i] = poolUse;
+  o.poolPending[i] = overflow * p.poolSize * 3 + (r[12] as number);
+  o.poolWait[i] = poolWait;
+  o.threads[i] = 40 + 30 * cpu + 60 * poolUse;
+  o.inflight[i] = traffic * server;
+}
+
+/** Same value bit for bit (so +0 and -0 differ, and NaN is never taken as equal: recomputed). */
+const isSameBits = (a: number, b: number): boolean => a === b && (a !== 0 || 1 / a === 1 / b);
+
+/** 1 at every step where any driver of `a` and `b` differs, else 0. */
+function markDifferingSteps(a: Drivers, b: Drivers, n: number): Uint8Array {
+  const differs = new Uint8Array(n);
+  for (const key of DRIVER_KEYS) {
+    const x = a[key];
+    const y = b[key];
+    for (let i = 0; i < n; i += 1) if (!isSameBits(x[i] as number, y[i] as number)) differs[i] = 1;
+  }
+  return differs;
+}
+
 /**
  * Derives every observable from the drivers. Couplings (all deliberately simple):
  * CPU demand = base + per-request work + GC burn; utilisation is capped by what steal leaves;
@@ -111,84 +242,83 @@ export function drawBaseTraffic(p: ServiceParams, rng: Random, timesMs: Float64A
  * traffic × hold time; errors rise from timeouts when latency explodes.
  */
 export function deriveObservables(p: ServiceParams, d: Drivers, baseTraffic: Float64Array, rng: Random, stepMs: number): Observables {
+  return deriveBoth(p, d, undefined, baseTraffic, rng, stepMs).faulted;
+}
+
+/**
+ * deriveObservables for `d` (`faulted`) and for `quietDrivers` (`counterfactual`) from the same
+ * noise: exactly what two runs from one generator state would give, and the generator ends where
+ * the faulted run alone leaves it. The noise is drawn once; the counterfactual is computed only at
+ * steps where the drivers differ (elsewhere every observable but uptime and restarts is the same
+ * function of the same inputs) and copied from the faulted run at the others.
+ */
+export function deriveObservablesWithCounterfactual(p: ServiceParams, d: Drivers, quietDrivers: Drivers, baseTraffic: Float64Array, rng: Random, stepMs: number): { faulted: Observables; counterfactual: Observables } {
+  const both = deriveBoth(p, d, quietDrivers, baseTraffic, rng, stepMs);
+  return { faulted: both.faulted, counterfactual: both.counterfactual as Observables };
+}
+
+function deriveBoth(p: ServiceParams, d: Drivers, qd: Drivers | undefined, baseTraffic: Float64Array, rng: Random, stepMs: number): { faulted: Observables; counterfactual?: Observables } {
   const n = baseTraffic.length;
-  const o = {} as Record<ObservableKey, Float64Array>;
-  for (const key of OBSERVABLE_KEYS) o[key] = new Float64Array(n);
+  const o = createObservables(n);
   const phi = Math.min(0.995, Math.exp(-stepMs / 300_000));
   const cpuNoise = drawAr1(rng, n, phi, p.cpuNoiseSigma);
   const memNoise = drawAr1(rng, n, Math.min(0.999, Math.exp(-stepMs / 1_800_000)), p.memNoiseSigma);
   const diskNoise = drawAr1(rng, n, phi, 0.15);
   // Slow wander of per-request cost, independent of traffic: long baselines are not flat.
   const slow = drawAr1(rng, n, Math.min(0.9995, Math.exp(-stepMs / 14_400_000)), p.slowDriftSigma);
+  const noise: StepNoise = { baseTraffic, cpu: cpuNoise, mem: memNoise, disk: diskNoise, slow };
   const stepS = stepMs / 1000;
   let uptimeS = rng.uniform(3600, 40 * 86400);
   let restarts = rng.int(0, 6);
+  const q = qd ? createObservables(n) : undefined;
+  const differs = qd ? markDifferingSteps(d, qd, n) : undefined;
+  let quietUptimeS = uptimeS;
+  let quietRestarts = restarts;
+  const r = new Float64Array(DRAWS_PER_STEP);
   for (let i = 0; i < n; i += 1) {
-    const traffic = (baseTraffic[i] as number) * (d.trafficScale[i] as number);
-    const loadRatio = traffic / p.requestRatePerS;
-    const mem = clamp(p.memBaseRatio * Math.exp(memNoise[i] as number) + (d.memExtra[i] as number) + (d.memLeak[i] as number), 0.02, 0.995);
-    const gcPressure = Math.max(0, mem - 0.7) / 0.3;
-    const steal = clamp((d.steal[i] as number) + 0.004 * Math.abs(rng.normal()), 0, 0.9);
-    const demand = Math.max(0.003, ((p.cpuBase + p.cpuPerLoad * loadRatio) * Math.exp((cpuNoise[i] as number) + (slow[i] as number)) + 0.25 * gcPressure * gcPressure) * (d.cpuScale[i] as number) + (d.cpuExtra[i] as number));
-    const capacity = 1 - steal;
-    const cpu = Math.min(demand, capacity * (0.97 + 0.025 * rng.next()));
-    const rho = demand / capacity;
-    const cpuFactor = 1 + p.queueSensitivity * Math.max(0, rho - 0.6) ** 2 / Math.max(0.04, 1 - rho) + 3 * Math.max(0, rho - 1);
-    const diskBusy = clamp((p.diskBase + p.diskPerLoad * loadRatio) * Math.exp(diskNoise[i] as number) + (d.diskExtra[i] as number), 0.001, 0.999);
-    const diskFactor = 1 / Math.max(0.03, 1 - diskBusy);
-    const iowait = clamp(0.002 + 0.35 * diskBusy ** 4 * (0.8 + 0.4 * rng.next()), 0, 1 - cpu);
-    const dependency = p.dependencyLatencyS * (1 + 0.2 * gcPressure) + (d.dependencyDelayS[i] as number);
-    const poolDemand = p.poolBaseRatio * loadRatio * (dependency / p.dependencyLatencyS) * (d.poolHold[i] as number);
-    const poolUse = Math.min(1, poolDemand);
-    const overflow = Math.max(0, poolDemand - 1);
-    const poolJitter = rng.next(); // drawn always: the draw count must not depend on the drivers
-    const poolWait = overflow > 0 ? dependency * overflow * 2 : 0.0005 * poolJitter;
-    const client = dependency + poolWait;
-    const ownWork = p.serverLatencyS * (1 - p.dependencyShare) * cpuFactor * (1 + p.persistenceShare * (diskFactor - 1) * 0.3) * (1 + 2 * steal);
-    const server = (ownWork + p.dependencyShare * client / Math.max(1e-9, p.dependencyLatencyS) * p.serverLatencyS) * (d.latencyScale[i] as number) * Math.exp(0.7 * (slow[i] as number));
-    // Timeouts only once requests run far past their usual time (and only in some systems).
-    const timeoutErrors = Math.min(0.5, p.timeoutSensitivity * Math.max(0, server / p.serverLatencyS - 8) + 0.3 * p.timeoutSensitivity * 10 * Math.min(1, overflow));
-    const errorRatio = clamp(p.errorBaseRatio * Math.exp(0.4 * rng.normal()) + (d.errorExtra[i] as number) + timeoutErrors + p.lossErrorShare * (d.lossFraction[i] as number), 0, 1);
+    drawStep(rng, r);
+    writeStep(p, d, i, noise, r, o);
     // Drawn on every step, so the number of draws does not depend on the drivers: a counterfactual
     // run without the fault (same generator state) then sees exactly the same noise.
-    const restartDraw = rng.next();
+    const restartDraw = r[5] as number;
     if ((d.restart[i] as number) > 0) {
       uptimeS = stepS * restartDraw;
       restarts += 1;
     } else {
       uptimeS += stepS;
     }
-    o.traffic[i] = traffic;
-    o.cpu[i] = cpu;
-    o.steal[i] = steal;
-    o.iowait[i] = iowait;
-    o.idle[i] = Math.max(0, 1 - cpu - iowait - steal);
-    o.load[i] = p.cores * (cpu + iowait * 2 + Math.max(0, rho - 0.95) * 4) * (1 + 0.1 * rng.normal() ** 2);
-    o.throttle[i] = clamp(Math.max(0, rho - 0.85) * 3, 0, 1) * (0.8 + 0.2 * rng.next());
-    o.mem[i] = mem;
-    o.memAvailable[i] = 1 - mem;
-    o.gc[i] = (0.05 + 0.2 * loadRatio) * (1 + 6 * gcPressure * gcPressure);
-    o.diskBusy[i] = diskBusy;
-    o.diskQueue[i] = diskBusy * diskFactor;
-    o.diskLatency[i] = 0.002 * diskFactor;
-    o.diskBytes[i] = 4096 * (200 * diskBusy + 20 * loadRatio);
-    o.netBytes[i] = traffic * p.bytesPerRequest * (1 - 3 * (d.lossFraction[i] as number));
-    o.retrans[i] = traffic * (p.retransPerRequest * Math.exp(0.5 * rng.normal()) + 20 * (d.lossFraction[i] as number));
-    o.drops[i] = traffic * 8 * (d.lossFraction[i] as number) * Math.exp(0.3 * rng.normal()) + (rng.chance(0.01) ? rng.uniform(0, 3) : 0);
-    o.serverLatency[i] = server;
-    o.clientLatency[i] = client;
-    o.callerLatency[i] = server + 0.002 + (d.callerDelayS[i] as number);
-    o.tail[i] = 1 + 0.5 * p.tailSigma * Math.abs(rng.studentT2()) + (d.tailExtra[i] as number);
-    o.errorRatio[i] = errorRatio;
-    o.successRatio[i] = 1 - errorRatio;
-    o.errorRate[i] = errorRatio * traffic;
-    o.poolUse[i] = poolUse;
-    o.poolPending[i] = overflow * p.poolSize * 3 + (rng.chance(0.02) ? 1 : 0);
-    o.poolWait[i] = poolWait;
     o.uptime[i] = uptimeS;
     o.restarts[i] = restarts;
-    o.threads[i] = 40 + 30 * cpu + 60 * poolUse;
-    o.inflight[i] = traffic * server;
+    if (q && qd && differs) {
+      if (differs[i] === 1) writeStep(p, qd, i, noise, r, q);
+      if ((qd.restart[i] as number) > 0) {
+        quietUptimeS = stepS * restartDraw;
+        quietRestarts += 1;
+      } else {
+        quietUptimeS += stepS;
+      }
+      q.uptime[i] = quietUptimeS;
+      q.restarts[i] = quietRestarts;
+    }
   }
-  return o;
+  if (q && differs) copyUnchangedSteps(o, q, differs);
+  return q ? { faulted: o, counterfactual: q } : { faulted: o };
+}
+
+/** Copies every observable but uptime and restarts from `from` to `to` over the runs of steps where `differs` is 0. */
+function copyUnchangedSteps(from: Observables, to: Observables, differs: Uint8Array): void {
+  const n = differs.length;
+  for (let a = 0; a < n;) {
+    if (differs[a] === 1) {
+      a += 1;
+      continue;
+    }
+    let b = a;
+    while (b < n && differs[b] === 0) b += 1;
+    for (const key of OBSERVABLE_KEYS) {
+      if (key === 'uptime' || key === 'restarts') continue;
+      to[key].set(from[key].subarray(a, b), a);
+    }
+    a = b;
+  }
 }

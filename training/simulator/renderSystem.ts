@@ -5,7 +5,7 @@
  */
 import { applyBenignEvent, drawBenignEvents, type BenignKind } from './benignEvents';
 import { applyFault, type FaultPlan } from './faults';
-import { createDrivers, deriveObservables, drawAr1, drawBaseTraffic, DRIVER_KEYS, type DriverKey, type Drivers, type Observables } from './latentModel';
+import { copyDrivers, createDrivers, deriveObservables, deriveObservablesWithCounterfactual, drawAr1, drawBaseTraffic, type Observables } from './latentModel';
 import type { Random } from './random';
 import type { SeriesSpec, SystemSpec } from './systemSpec';
 import type { SimSeries, SimSystem } from './types';
@@ -131,10 +131,10 @@ export function renderSystem(spec: SystemSpec, request: RenderRequest, rng: Rand
   const quietDrivers = request.keepCounterfactual ? copyDrivers(drivers) : undefined;
   for (const plan of request.faults) applyFault(drivers, plan, spec.params, rng);
   const baseTraffic = drawBaseTraffic(spec.params, rng, timesMs, spec.stepMs);
-  // The counterfactual replays the same generator state, so only the fault differs between the two.
-  const quietRng = quietDrivers ? rng.clone() : undefined;
-  const o = deriveObservables(spec.params, drivers, baseTraffic, rng, spec.stepMs);
-  const quiet = quietDrivers && quietRng ? deriveObservables(spec.params, quietDrivers, baseTraffic, quietRng, spec.stepMs) : undefined;
+  // The counterfactual sees the same noise as the faulted run, so only the fault differs between the two.
+  const both = quietDrivers ? deriveObservablesWithCounterfactual(spec.params, drivers, quietDrivers, baseTraffic, rng, spec.stepMs) : undefined;
+  const o = both ? both.faulted : deriveObservables(spec.params, drivers, baseTraffic, rng, spec.stepMs);
+  const quiet = both?.counterfactual;
   const sharedNoise = new Map<string, Float64Array>();
   const quanta = new Map<string, number>();
   const logTail = new Float64Array(n);
@@ -166,10 +166,4 @@ export function renderSystem(spec: SystemSpec, request: RenderRequest, rng: Rand
     .sort((a, b) => a.startIndex - b.startIndex);
   const system: SimSystem = { id: spec.id, seed: spec.seed, namingStyle: spec.namingStyle, stepMs: spec.stepMs, timesMs, series, incidents };
   return quiet ? { ...system, observables: { faulted: o, counterfactual: quiet } } : system;
-}
-
-function copyDrivers(d: Drivers): Drivers {
-  const out = {} as Record<DriverKey, Float64Array>;
-  for (const key of DRIVER_KEYS) out[key] = Float64Array.from(d[key]);
-  return out;
 }
