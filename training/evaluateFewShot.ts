@@ -3,14 +3,19 @@
  * learns fault types the bundled model never saw, and what it costs the built-in classes.
  *
  * Protocol (prototypical networks, Snell et al. 2017, episodic evaluation):
- * - Held-out classes come from the simulator (connection_pool_exhaustion, cpu_steal_noisy_neighbour);
- *   support and query incidents come from disjoint simulated systems, both unseen by training.
- * - Built-in effect: the simulator's calibration and test splits (systems unseen by training).
- * - The blend parameters are chosen on a calibration half (query systems A + the built-in
- *   calibration split) and reported on the other half (query systems B + the built-in test split).
- * - For each k in {1, 3, 5}: `episodes` random draws of k support incidents per held-out class →
- *   prototypes → blended verdict on every query; accuracy on the held-out queries, macro-F1 on the
- *   built-in test set with and without the library (mean over episodes and the worst episode).
+ * - Held-out classes come from the simulator (connection_pool_exhaustion, cpu_steal_noisy_neighbour).
+ * - New systems: support and query incidents from disjoint simulated systems, both unseen by
+ *   training; built-in effect on the simulator's test split.
+ * - Same systems: per simulated system (a team's service) its own support, queries and built-in
+ *   incidents; variants where the library also holds k of the team's incidents per built-in class,
+ *   and where only systems exporting a key metric of both held-out types count.
+ * - Every rule's settings are chosen on a calibration half and reported on the other half.
+ * - For each k in {1, 3, 5}: `episodes` random draws of k support incidents per class → blended
+ *   verdict on every query; accuracy on the held-out queries, macro-F1 on the built-in queries with
+ *   and without the library (mean over episodes and the worst episode).
+ * Rules: `prototype` = the earlier distance-gated blend (blendVerdict); `compete` = competeVerdict
+ * with the combined signature + embedding similarity, and its signature-only and embedding-only
+ * ablations, each calibrated; `compete (product defaults)` = DEFAULT_COMPETITION_OPTIONS as shipped.
  */
 import { CLASSES, type MetricWindow } from '../extension/core/model/types';
 import { computePrototypes, scorePrototypes, type EmbeddingNormalization } from '../extension/core/model/prototypes';
@@ -20,9 +25,11 @@ import { computeCalibratedLogProbabilities } from '../extension/core/model/class
 import { encodeBatch } from '../extension/core/model/encode';
 import { loadClassifierModel } from '../extension/runtime/onnxRunner';
 import { readFileSync } from 'node:fs';
-import { computeAccuracy, computeMacroF1, drawSupport, type EmbeddedExample } from './fewShotScoring';
+import { computeAccuracy, computeMacroF1, computeMeanSd, drawSupport, type EmbeddedExample } from './fewShotScoring';
+import { computeMetricSignature } from '../extension/core/model/librarySignature';
+import { competeVerdict, computeClassSimilarities, DEFAULT_COMPETITION_OPTIONS, type ClassSimilarity, type CompetitionOptions } from '../extension/core/model/librarySignatureVerdict';
 import { join } from 'node:path';
-import { buildFewShotSplits, buildSplits, createRandom, drawSystemSeeds, HELD_OUT_CLASSES, mixSeeds, sampleExamples, type SimClass, type TrainingExample } from './simulator';
+import { buildFewShotSplits, buildSplits, buildSystemSpec, drawSystemSeeds, HELD_OUT_CLASSES, mixSeeds, sampleExamples, type SimClass, type TrainingExample } from './simulator';
 
 /** The bundled model seen as: calibrated probabilities over CLASSES and an embedding per example. */
 interface Embedder {
@@ -165,7 +172,7 @@ function calibrateBlend(groups: readonly EvaluationGroup[], heldOutClasses: read
 
 async function embedExamples(embedder: Embedder, examples: readonly TrainingExample[]): Promise<EmbeddedExample[]> {
   const out = await embedder.embed(examples.map((e) => e.metrics));
-  return examples.map((e, i) => ({ label: e.label, systemId: e.systemId, probabilities: out[i].probabilities, embedding: out[i].embedding }));
+  return examples.map((e, i) => ({ label: e.label, systemId: e.systemId, probabilities: out[i].probabilities, embedding: out[i].embedding, signature: computeMetricSignature(e.metrics) }));
 }
 
 /** Support examples as the library stores them (downsampled), to measure what storage costs. */
@@ -219,33 +226,141 @@ async function buildCrossSystemGroups(embedder: Embedder, seed: number): Promise
   return { groups: [{ support, heldOut, builtIn: builtInEmbedded }], rawSupport: fewShot.support };
 }
 
-/** Same-system protocol: per simulated system (a team's service), its own support, queries and built-in incidents. */
-async function buildSameSystemGroups(embedder: Embedder, seed: number, systemCount: number, withBuiltInSupport: boolean): Promise<EvaluationGroup[]> {
+/** Role keys of the held-out types' key metrics (as KEY_ROLES in training/simulator/sampleExamples.ts: pool*, cpuSteal). */
+function hasKeyMetricsOfBothHeldOutTypes(systemSeed: number): boolean {
+  const roles = buildSystemSpec(systemSeed).series.map((x) => x.role.key);
+  return roles.some((r) => r.startsWith('pool')) && roles.includes('cpuSteal');
+}
+
+/**
+ * Same-system protocol: per simulated system (a team's service), its own support, queries and
+ * built-in incidents, plus 40 of its own built-in incidents the library may hold. With
+ * `isKeyMetricsOnly`, the first `systemCount` systems that export a key metric of both held-out types.
+ */
+async function buildSameSystemGroups(embedder: Embedder, seed: number, systemCount: number, isKeyMetricsOnly: boolean): Promise<EvaluationGroup[]> {
   const taken = new Set<number>();
   for (const [split, count] of [[1, 300], [2, 80], [3, 80], [4, 20], [5, 60]] as const) drawSystemSeeds(seed, split, count, taken);
-  const systems = drawSystemSeeds(seed, 6, systemCount, taken);
+  const systems = isKeyMetricsOnly
+    ? drawSystemSeeds(seed, 6, 600, taken).filter(hasKeyMetricsOfBothHeldOutTypes).slice(0, systemCount)
+    : drawSystemSeeds(seed, 6, systemCount, taken);
   const groups: EvaluationGroup[] = [];
   for (const system of systems) {
     const draw = (part: number, count: number, classes: readonly SimClass[]): Promise<EmbeddedExample[]> =>
       embedExamples(embedder, sampleExamples({ seed: mixSeeds(seed, 60 + part, system), count, systemSeeds: [system], classes }));
-    const group = { support: await draw(1, 10, HELD_OUT_CLASSES), heldOut: await draw(2, 24, HELD_OUT_CLASSES), builtIn: await draw(3, 80, CLASSES) };
-    groups.push(withBuiltInSupport ? { ...group, builtInSupport: await draw(4, 40, CLASSES) } : group);
+    groups.push({ support: await draw(1, 10, HELD_OUT_CLASSES), heldOut: await draw(2, 24, HELD_OUT_CLASSES), builtIn: await draw(3, 80, CLASSES), builtInSupport: await draw(4, 40, CLASSES) });
   }
   return groups;
 }
 
-function writeTable(title: string, calibration: readonly EvaluationGroup[], report: readonly EvaluationGroup[], classes: readonly string[], args: { episodes: number; budget: number }): void {
-  const count = (gs: readonly EvaluationGroup[], key: 'heldOut' | 'builtIn'): number => gs.reduce((s, g) => s + g[key].length, 0);
-  process.stdout.write(`\n## ${title}\ncalibration: ${count(calibration, 'heldOut')} held-out / ${count(calibration, 'builtIn')} built-in incidents; report: ${count(report, 'heldOut')} held-out / ${count(report, 'builtIn')} built-in\n`);
-  for (const normalization of ['l2', 'none'] as const) {
-    const { options } = calibrateBlend(calibration, classes, normalization, args.budget);
-    process.stdout.write(`\nnormalization ${normalization}: temperature ${options.temperature.toPrecision(3)}, acceptDistance ${options.acceptDistance.toPrecision(3)}, softness ${options.softness.toPrecision(3)}, maxWeight ${options.maxWeight}\n`);
-    process.stdout.write('| k | held-out accuracy, blended (mean ± sd) | nearest-prototype accuracy among library classes | built-in macro-F1 without → with library | worst-episode drop (points) |\n|---|---|---|---|---|\n');
-    for (const k of [1, 3, 5]) {
-      const r = evaluateK(k, args.episodes, report, classes, options);
-      process.stdout.write(`| ${k} | ${format(r.accuracyMean)} ± ${format(r.accuracySd)} | ${format(r.accuracyPrototypeOnly)} | ${format(r.f1Base)} → ${format(r.f1WithLibraryMean)} | ${(100 * r.f1DropWorst).toFixed(2)} |\n`);
+const withoutBuiltInSupport = (groups: readonly EvaluationGroup[]): EvaluationGroup[] => groups.map(({ support, heldOut, builtIn }) => ({ support, heldOut, builtIn }));
+
+/** Class similarities of every query of one group against one episode's library. */
+interface GroupSimilarities {
+  readonly heldOut: readonly ClassSimilarity[][];
+  readonly builtIn: readonly ClassSimilarity[][];
+}
+
+/** [episode][group] class similarities for k-shot libraries (the same draws as evaluateK). */
+function computeEpisodeSimilarities(groups: readonly EvaluationGroup[], heldOutClasses: readonly string[], k: number, episodes: number): GroupSimilarities[][] {
+  const out: GroupSimilarities[][] = [];
+  for (let episode = 0; episode < episodes; episode++) {
+    out.push(groups.map((g, gi) => {
+      const shots = drawLibrary(g, heldOutClasses, k, 100_000 * k + 1000 * gi + episode);
+      const sims = (q: EmbeddedExample): ClassSimilarity[] => computeClassSimilarities(q, shots);
+      return { heldOut: g.heldOut.map(sims), builtIn: g.builtIn.map(sims) };
+    }));
+  }
+  return out;
+}
+
+/** Scores of the competition rule over precomputed similarities (see KResult). */
+function scoreCompetition(k: number, groups: readonly EvaluationGroup[], sims: readonly GroupSimilarities[][], options: CompetitionOptions): KResult {
+  const builtInTruth = groups.flatMap((g) => g.builtIn.map((e) => e.label));
+  const heldOutTruth = groups.flatMap((g) => g.heldOut.map((e) => e.label));
+  const f1Base = computeMacroF1(builtInTruth, groups.flatMap((g) => predictBase(g.builtIn)), CLASSES);
+  const accuracies: number[] = [];
+  const nearestAccuracies: number[] = [];
+  const f1s: number[] = [];
+  for (const episode of sims) {
+    const heldOut: string[] = [];
+    const nearest: string[] = [];
+    const builtIn: string[] = [];
+    groups.forEach((g, gi) => {
+      g.heldOut.forEach((q, i) => {
+        const v = competeVerdict(q.probabilities, episode[gi].heldOut[i], options);
+        heldOut.push(v.className);
+        nearest.push(v.nearestLabel ?? '');
+      });
+      g.builtIn.forEach((q, i) => builtIn.push(competeVerdict(q.probabilities, episode[gi].builtIn[i], options).className));
+    });
+    accuracies.push(computeAccuracy(heldOutTruth, heldOut));
+    nearestAccuracies.push(computeAccuracy(heldOutTruth, nearest));
+    f1s.push(computeMacroF1(builtInTruth, builtIn, CLASSES));
+  }
+  const [accuracyMean, accuracySd] = computeMeanSd(accuracies);
+  return { k, accuracyMean, accuracySd, accuracyPrototypeOnly: mean(nearestAccuracies), f1Base, f1WithLibraryMean: mean(f1s), f1DropWorst: f1Base - Math.min(...f1s) };
+}
+
+/** The z-scaling of the two similarities: their mean and sd over query-to-class similarities. */
+function estimateSimilarityScale(sims: readonly GroupSimilarities[][], signatureWeight: number): CompetitionOptions['scale'] {
+  const all = sims.flatMap((e) => e.flatMap((g) => [...g.heldOut, ...g.builtIn].flat()));
+  const [signatureMean, signatureSd] = computeMeanSd(all.map((c) => c.signatureCosine ?? Number.NaN));
+  const [embeddingMean, embeddingSd] = computeMeanSd(all.map((c) => c.embeddingCosine ?? Number.NaN));
+  const round = (x: number): number => Number(x.toPrecision(3));
+  return { signatureWeight, signatureMean: round(signatureMean), signatureSd: round(Math.max(signatureSd, 1e-6)), embeddingMean: round(embeddingMean), embeddingSd: round(Math.max(embeddingSd, 1e-6)) };
+}
+
+/**
+ * Pick the competition rule's acceptance threshold and head-confidence cap (and, unless fixed,
+ * the signature weight) on calibration groups at k = 3: best held-out accuracy whose mean built-in
+ * macro-F1 drop stays within the budget. Returns undefined when no setting keeps the budget.
+ */
+function calibrateCompetition(groups: readonly EvaluationGroup[], heldOutClasses: readonly string[], weights: readonly number[], f1BudgetPoints: number): { options: CompetitionOptions; result: KResult } | undefined {
+  const sims = computeEpisodeSimilarities(groups, heldOutClasses, 3, 6);
+  let best: { options: CompetitionOptions; result: KResult } | undefined;
+  for (const signatureWeight of weights) {
+    const scale = estimateSimilarityScale(sims, signatureWeight);
+    for (const acceptSimilarity of [-0.5, 0, 0.25, 0.5, 0.75, 1, 1.25, 1.5, 1.75, 2, 2.5, 3]) {
+      for (const headConfidenceCap of [0.5, 0.6, 0.7, 0.8, 0.9, 0.95, 1]) {
+        const options: CompetitionOptions = { ...DEFAULT_COMPETITION_OPTIONS, scale, acceptSimilarity, headConfidenceCap };
+        const result = scoreCompetition(3, groups, sims, options);
+        const isWithinBudget = (result.f1Base - result.f1WithLibraryMean) * 100 <= f1BudgetPoints;
+        if (isWithinBudget && (best === undefined || result.accuracyMean > best.result.accuracyMean)) best = { options, result };
+      }
     }
   }
+  return best;
+}
+
+const describeCompetition = (o: CompetitionOptions): string =>
+  `signatureWeight ${o.scale.signatureWeight}, scale sig ${o.scale.signatureMean}±${o.scale.signatureSd} emb ${o.scale.embeddingMean}±${o.scale.embeddingSd}, acceptSimilarity ${o.acceptSimilarity}, headConfidenceCap ${o.headConfidenceCap}, maxWeight ${o.maxWeight}, temperature ${o.temperature}`;
+
+const formatRow = (rule: string, r: KResult): string =>
+  `| ${rule} | ${r.k} | ${format(r.accuracyMean)} ± ${format(r.accuracySd)} | ${format(r.accuracyPrototypeOnly)} | ${format(r.f1Base)} → ${format(r.f1WithLibraryMean)} | ${(100 * (r.f1Base - r.f1WithLibraryMean)).toFixed(2)} | ${(100 * r.f1DropWorst).toFixed(2)} |\n`;
+
+/** Calibrated competition settings of one table, by variant name. */
+type CalibratedRules = Map<string, CompetitionOptions | undefined>;
+
+function writeTable(title: string, calibration: readonly EvaluationGroup[], report: readonly EvaluationGroup[], classes: readonly string[], args: { episodes: number; budget: number }): CalibratedRules {
+  const count = (gs: readonly EvaluationGroup[], key: 'heldOut' | 'builtIn'): number => gs.reduce((s, g) => s + g[key].length, 0);
+  process.stdout.write(`\n## ${title}\ncalibration: ${count(calibration, 'heldOut')} held-out / ${count(calibration, 'builtIn')} built-in incidents; report: ${count(report, 'heldOut')} held-out / ${count(report, 'builtIn')} built-in\n\n`);
+  const prototype = calibrateBlend(calibration, classes, 'l2', args.budget).options;
+  const rules: CalibratedRules = new Map([
+    ['compete, combined', calibrateCompetition(calibration, classes, [0.25, 0.5, 0.75], args.budget)?.options],
+    ['compete, signature only', calibrateCompetition(calibration, classes, [1], args.budget)?.options],
+    ['compete, embedding only', calibrateCompetition(calibration, classes, [0], args.budget)?.options],
+  ]);
+  process.stdout.write(`- prototype (l2): temperature ${prototype.temperature.toPrecision(3)}, acceptDistance ${prototype.acceptDistance.toPrecision(3)}, softness ${prototype.softness.toPrecision(3)}, maxWeight ${prototype.maxWeight}\n`);
+  for (const [name, o] of rules) process.stdout.write(`- ${name}: ${o === undefined ? `no setting kept the drop within ${args.budget} points` : describeCompetition(o)}\n`);
+  process.stdout.write(`- compete (product defaults): ${describeCompetition(DEFAULT_COMPETITION_OPTIONS)}\n\n`);
+  process.stdout.write('| rule | k | held-out accuracy (mean ± sd) | nearest library class accuracy (closed set) | built-in macro-F1 without → with | mean drop (points) | worst-episode drop |\n|---|---|---|---|---|---|---|\n');
+  for (const k of [1, 3, 5]) {
+    process.stdout.write(formatRow('prototype', evaluateK(k, args.episodes, report, classes, prototype)));
+    const sims = computeEpisodeSimilarities(report, classes, k, args.episodes);
+    for (const [name, o] of rules) if (o !== undefined) process.stdout.write(formatRow(name, scoreCompetition(k, report, sims, o)));
+    process.stdout.write(formatRow('compete (product defaults)', scoreCompetition(k, report, sims, DEFAULT_COMPETITION_OPTIONS)));
+  }
+  return rules;
 }
 
 /** Run the evaluation and print the tables (markdown). */
@@ -258,11 +373,14 @@ export async function runFewShotEvaluation(argv: readonly string[]): Promise<voi
   const cross = await buildCrossSystemGroups(embedder, seed);
   const [crossCalibration, crossReport] = splitInHalves(cross.groups);
   writeTable('New systems (support and queries from disjoint simulated systems)', crossCalibration, crossReport, HELD_OUT_CLASSES, args);
-  // --with-built-in-support: the library also holds k of the team's incidents of each built-in
-  // class (measured on model 0.1.0: it lowered built-in macro-F1 by 3–6 points with this gate).
-  const withBuiltIn = argv.includes('--with-built-in-support');
-  const [sameCalibration, sameReport] = splitInHalves(await buildSameSystemGroups(embedder, seed, 24, withBuiltIn));
-  writeTable(`Same systems (each team labels and meets incidents of its own service)${withBuiltIn ? ', library also holds k built-in incidents per class' : ''}`, sameCalibration, sameReport, HELD_OUT_CLASSES, args);
+  const same = await buildSameSystemGroups(embedder, seed, 24, false);
+  const [sameCalibration, sameReport] = splitInHalves(same);
+  writeTable('Same systems (each team labels and meets incidents of its own service)', withoutBuiltInSupport(sameCalibration), withoutBuiltInSupport(sameReport), HELD_OUT_CLASSES, args);
+  const product = writeTable('Same systems, library also holds k of the team\'s incidents per built-in class', sameCalibration, sameReport, HELD_OUT_CLASSES, args);
+  const [keyCalibration, keyReport] = splitInHalves(await buildSameSystemGroups(embedder, seed, 24, true));
+  writeTable('Same systems exporting a key metric of both held-out types, library also holds k built-in incidents per class', keyCalibration, keyReport, HELD_OUT_CLASSES, args);
+  const chosen = product.get('compete, combined');
+  if (chosen !== undefined) process.stdout.write(`\nproduct defaults suggested by the calibration half of "library also holds k built-in incidents": ${describeCompetition(chosen)}\n`);
   await reportStorageEffect(embedder, cross.rawSupport, cross.groups[0].support);
   await embedder.release();
   process.stdout.write(`\n(${((Date.now() - startedMs) / 1000).toFixed(1)} s)\n`);

@@ -4,6 +4,7 @@
  */
 import { computeClassScores, computeConfusionMatrix } from './metrics';
 import { createRandom } from './simulator';
+import type { MetricSignature } from '../extension/core/model/librarySignature';
 
 /** One example after the model: calibrated class probabilities and embedding. */
 export interface EmbeddedExample {
@@ -11,6 +12,8 @@ export interface EmbeddedExample {
   readonly systemId: string;
   readonly probabilities: Readonly<Record<string, number>>;
   readonly embedding: Float64Array;
+  /** Name-aware metric signature (librarySignature.ts) of the example's window. */
+  readonly signature?: MetricSignature;
 }
 
 /**
@@ -51,3 +54,11 @@ export function drawSupport(support: readonly EmbeddedExample[], classes: readon
   return out;
 }
 
+
+/** Mean and standard deviation of the finite values (population sd); [NaN, NaN] when there are none. */
+export function computeMeanSd(values: readonly number[]): [number, number] {
+  const finite = values.filter(Number.isFinite);
+  if (finite.length === 0) return [Number.NaN, Number.NaN];
+  const m = finite.reduce((s, x) => s + x, 0) / finite.length;
+  return [m, Math.sqrt(finite.reduce((s, x) => s + (x - m) ** 2, 0) / finite.length)];
+}

@@ -94,7 +94,7 @@ export function reblendFinding(frame: MetricFrame, finding: Finding, base: BaseV
       nearest: [], staleEntryCount: 0,
     };
   }
-  const match = matchLibrary(base.summary.probabilities, base.embedding, entries, base.modelVersion);
+  const match = matchLibrary(base.summary.probabilities, base.embedding, entries, base.modelVersion, { frame, incident: finding.incident, baseline: finding.baseline });
   let verdict = base.summary;
   if (match.verdict.libraryWeight > 0) {
     const v = match.verdict;

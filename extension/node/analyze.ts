@@ -148,7 +148,7 @@ export async function analyzeExport(path: string, options: AnalyzeOptions): Prom
   let nearestIncidents: Finding['nearestIncidents'];
   if (options.libraryPath) {
     const library = await readLibraryFile(options.libraryPath);
-    const match = matchLibrary(summary.probabilities, verdict.embedding, library.entries, formatLibraryModelVersion(model.spec.version, model.sha256));
+    const match = matchLibrary(summary.probabilities, verdict.embedding, library.entries, formatLibraryModelVersion(model.spec.version, model.sha256), { frame, incident: windows.incident, baseline: windows.baseline });
     if (match.staleEntryCount > 0) windows.caveats.push(`${match.staleEntryCount} incident-library entries were embedded by another model version and were left out; re-embed the library.`);
     nearestIncidents = match.nearest.map((n) => ({ label: n.label, similarity: n.cosineSimilarity, postmortem: n.postmortem }));
     if (match.verdict.libraryWeight > 0) {

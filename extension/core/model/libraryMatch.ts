@@ -1,11 +1,16 @@
 import type { LibraryEntry } from './libraryTypes';
-import { computePrototypes, scorePrototypes } from './prototypes';
-import { blendVerdict, DEFAULT_BLEND_OPTIONS, findNearestIncidents, type BlendedVerdict, type BlendOptions, type NearestIncident } from './libraryVerdict';
+import { toMetricWindows } from './libraryEntry';
+import { computeMetricSignature, type SignatureMetric } from './librarySignature';
+import { competeVerdict, computeClassSimilarities, DEFAULT_COMPETITION_OPTIONS, type CompetitionOptions } from './librarySignatureVerdict';
+import { findNearestIncidents, type BlendedVerdict, type NearestIncident } from './libraryVerdict';
+import type { WindowSpec } from './encode';
+import type { IndexWindow, MetricFrame } from '../frame/types';
+import { extractLibraryMetrics } from './libraryFrame';
 
 /** The library applied to one classified window. */
 export interface LibraryMatch {
   readonly verdict: BlendedVerdict;
-  /** Nearest past incidents (current model version only), nearest first. */
+  /** Nearest past incidents (current model version only, by embedding), nearest first. */
   readonly nearest: readonly NearestIncident[];
   /** Entries used (embedded by the current model version). */
   readonly usedEntryCount: number;
@@ -14,26 +19,49 @@ export interface LibraryMatch {
 }
 
 /**
- * Blend a classified window with the incident library: prototypes from the entries embedded by
- * `modelVersion` (others are skipped and counted, since embeddings of two models are not
- * comparable), the blended verdict (see blendVerdict) and the `nearestCount` nearest entries.
- * An empty or fully stale library gives the base verdict unchanged (libraryWeight 0).
- * `baseProbabilities` are the bundled head's calibrated probabilities by class name.
+ * The query window's metric data, for the name-aware signature similarity (librarySignature.ts):
+ * either the metrics already cut to the incident and baseline windows, or the frame and the two
+ * windows (inclusive grid indices) to cut them from. `windowSpec` is the encoding used for
+ * signatures; it defaults to DEFAULT_WINDOW_SPEC (a product setting, not the model's).
+ */
+export type LibraryQuery =
+  | { readonly metrics: readonly SignatureMetric[]; readonly windowSpec?: WindowSpec }
+  | { readonly frame: MetricFrame; readonly incident: IndexWindow; readonly baseline: IndexWindow; readonly windowSpec?: WindowSpec };
+
+function toQueryMetrics(query: LibraryQuery): readonly SignatureMetric[] {
+  return 'metrics' in query ? query.metrics : extractLibraryMetrics(query.frame, query.incident, query.baseline);
+}
+
+/**
+ * Blend a classified window with the incident library by competition (competeVerdict): every
+ * label of the entries embedded by `modelVersion` (others are skipped and counted, since
+ * embeddings of two models are not comparable) competes by its mean combined similarity — the
+ * signature cosine (when `query` gives the window's metric data) mixed with the embedding cosine;
+ * a team label wins only when it is nearest, the head is unsure and the similarity is high enough.
+ * Without `query` the embedding alone decides (weaker: see DEFAULT_COMPETITION_OPTIONS). Also
+ * returns the `nearestCount` nearest entries by embedding. An empty or fully stale library gives
+ * the base verdict unchanged (libraryWeight 0). `baseProbabilities` are the head's calibrated
+ * probabilities by class name.
  */
 export function matchLibrary(
   baseProbabilities: Readonly<Record<string, number>>,
   embedding: ArrayLike<number>,
   entries: readonly LibraryEntry[],
   modelVersion: string,
-  options: BlendOptions = DEFAULT_BLEND_OPTIONS,
+  query?: LibraryQuery,
+  options: CompetitionOptions = DEFAULT_COMPETITION_OPTIONS,
   nearestCount = 3,
 ): LibraryMatch {
   const current = entries.filter((e) => e.modelVersion === modelVersion && e.embedding.length === embedding.length);
-  const prototypes = computePrototypes(current, options.normalization);
-  const verdict = blendVerdict(baseProbabilities, scorePrototypes(embedding, prototypes, options), options);
+  const signatureOf = query === undefined
+    ? () => undefined
+    : (metrics: readonly SignatureMetric[]) => computeMetricSignature(metrics, query.windowSpec);
+  const querySide = { embedding, signature: query === undefined ? undefined : signatureOf(toQueryMetrics(query)) };
+  const competing = current.map((e) => ({ label: e.label, embedding: e.embedding, signature: signatureOf(toMetricWindows(e)) }));
+  const verdict = competeVerdict(baseProbabilities, computeClassSimilarities(querySide, competing), options);
   return {
     verdict,
-    nearest: findNearestIncidents(embedding, current, nearestCount, options),
+    nearest: findNearestIncidents(embedding, current, nearestCount),
     usedEntryCount: current.length,
     staleEntryCount: entries.length - current.length,
   };

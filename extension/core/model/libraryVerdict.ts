@@ -39,6 +39,10 @@ export interface BlendedVerdict {
   readonly libraryWeight: number;
   /** Squared distance to the nearest prototype; undefined when the library is empty. */
   readonly nearestSquaredDistance?: number;
+  /** Competition rule (competeVerdict): combined similarity (sd units) of the nearest library class. */
+  readonly nearestSimilarity?: number;
+  /** Competition rule: the nearest library class, whether or not it took the verdict. */
+  readonly nearestLabel?: string;
   /**
    * Set when the winning class got more of its probability from the library than from the bundled
    * head: shown as "matches your past incident <label> (n examples)".

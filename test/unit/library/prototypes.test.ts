@@ -124,13 +124,16 @@ describe('matchLibrary', () => {
       makeEntry({ id: 'a', label: 'pool_leak', embedding: [1, 0, 0], modelVersion: 'v2' }),
       makeEntry({ id: 'b', label: 'pool_leak', embedding: [0, 0, 1], modelVersion: 'v1' }),
     ];
-    const options = { normalization: 'l2' as const, temperature: 0.1, acceptDistance: 0.2, softness: 0.02, maxWeight: 0.9 };
-    const match = matchLibrary({ normal: 0.6, cpu_saturation: 0.4 }, [1, 0.01, 0], entries, 'v2', options);
+    // Embedding only (no query metrics): z = (cos − 0)/1, accepted from 0.5.
+    const options = { scale: { signatureWeight: 0.5, signatureMean: 0, signatureSd: 1, embeddingMean: 0, embeddingSd: 1 }, acceptSimilarity: 0.5, headConfidenceCap: 0.9, maxWeight: 0.9, temperature: 0.25 };
+    const match = matchLibrary({ normal: 0.6, cpu_saturation: 0.4 }, [1, 0.01, 0], entries, 'v2', undefined, options);
     assert.equal(match.usedEntryCount, 1);
     assert.equal(match.staleEntryCount, 1);
     assert.equal(match.verdict.className, 'pool_leak');
     assert.deepEqual(match.nearest.map((n) => n.id), ['a']);
-    const none = matchLibrary({ normal: 0.6, cpu_saturation: 0.4 }, [1, 0.01, 0], entries, 'v3', options);
+    // Only library label, all of the mass: p = 0.9 · 1 (one library class, softmax of one value).
+    assert.ok(Math.abs(match.verdict.probability - 0.9) < 1e-12);
+    const none = matchLibrary({ normal: 0.6, cpu_saturation: 0.4 }, [1, 0.01, 0], entries, 'v3', undefined, options);
     assert.equal(none.verdict.className, 'normal');
     assert.equal(none.verdict.libraryWeight, 0);
   });

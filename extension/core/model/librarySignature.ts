@@ -1,0 +1,129 @@
+/**
+ * Metric signatures: a name-aware, model-free description of a window for the incident library.
+ * A team's recurring incident shows on the same metrics (same names and labels) with the same
+ * shape, which the bundled model's embedding partly washes out (it is trained to forget names).
+ * A signature keeps, per metric id, a few of the frozen temporal features of the classifier's
+ * encoding (temporalFeatures.ts); two windows compare by the cosine of those features over the
+ * metric ids they share.
+ */
+import type { Family } from '../frame/types';
+import { DEFAULT_WINDOW_SPEC, encodeMetricWindows, type WindowSpec } from './encode';
+import { downsampleForLibrary } from './libraryEntry';
+import { LIBRARY_MAX_POINTS } from './libraryTypes';
+import { computeNodeFeatures, NODE_FEATURE_COUNT } from './temporalFeatures';
+import type { MetricWindow } from './types';
+
+/**
+ * Node features kept in a signature (indices into computeNodeFeatures' output): the window mean,
+ * the four quarter means (onset, persistence, recovery) and max/min. Chosen by the lead's
+ * same-system experiments (.cache/scratch/rules.ts); all are in squashed robust-z units
+ * (asinh of deviations from the baseline median, in baseline robust scales).
+ */
+export const SIGNATURE_FEATURES: readonly number[] = [0, 1, 2, 3, 4, 12, 13];
+
+/** One metric's data as a signature needs it: MetricWindow, LibraryMetricInput and stored entries all fit. */
+export interface SignatureMetric {
+  readonly id: string;
+  readonly family: Family;
+  readonly baseline: ArrayLike<number>;
+  readonly window: ArrayLike<number>;
+}
+
+/** Per metric id, its SIGNATURE_FEATURES values (length SIGNATURE_FEATURES.length). */
+export type MetricSignature = ReadonlyMap<string, Float64Array>;
+
+/**
+ * The signature of one window. Each metric is first thinned exactly as a library entry stores it
+ * (window by bucket means, baseline by picking samples, ≤ LIBRARY_MAX_POINTS points each), so a
+ * query read at full resolution and a stored entry of the same data give the same signature; then
+ * encoded with `spec` (a fixed product setting, not the model's, so signatures survive model
+ * changes) and reduced to SIGNATURE_FEATURES. Metrics the encoder cannot normalise (too short,
+ * baseline of gaps, window mostly gaps — see encodeMetricRow) are left out. A repeated id keeps
+ * its first metric. Empty input, or no usable metric, gives an empty signature.
+ */
+export function computeMetricSignature(metrics: readonly SignatureMetric[], spec: WindowSpec = DEFAULT_WINDOW_SPEC): MetricSignature {
+  const thinned: MetricWindow[] = [];
+  const seen = new Set<string>();
+  for (const m of metrics) {
+    if (seen.has(m.id)) continue;
+    seen.add(m.id);
+    thinned.push({
+      id: m.id, family: m.family,
+      baseline: toGapArray(downsampleForLibrary(m.baseline, LIBRARY_MAX_POINTS, 'pick')),
+      window: toGapArray(downsampleForLibrary(m.window, LIBRARY_MAX_POINTS, 'mean')),
+    });
+  }
+  const signature = new Map<string, Float64Array>();
+  if (thinned.length === 0) return signature;
+  const batch = encodeMetricWindows(thinned, spec);
+  const features = computeNodeFeatures(batch.values, batch.nodeCount, spec);
+  thinned.forEach((m, n) => {
+    if (batch.mask[n] === 0) return;
+    signature.set(m.id, Float64Array.from(SIGNATURE_FEATURES, (f) => features[n * NODE_FEATURE_COUNT + f]));
+  });
+  return signature;
+}
+
+function toGapArray(values: readonly (number | null)[]): Float64Array {
+  return Float64Array.from(values, (v) => (v === null ? Number.NaN : v));
+}
+
+/**
+ * Cosine similarity of two signatures over the metric ids they share: the feature vectors of the
+ * shared ids are concatenated (in `a`'s order) and compared as one vector. Returns a value in
+ * −1..1; 0 when no id is shared or either side is all zeros there (nothing to compare, so no
+ * evidence of similarity). Metrics present on one side only do not count: a window that exports
+ * more metrics is not penalised for them.
+ */
+export function computeSignatureCosine(a: MetricSignature, b: MetricSignature): number {
+  let dot = 0;
+  let normA = 0;
+  let normB = 0;
+  for (const [id, va] of a) {
+    const vb = b.get(id);
+    if (vb === undefined) continue;
+    if (vb.length !== va.length) throw new Error(`expected signature vectors of length ${va.length}, got ${vb.length} for metric ${id}`);
+    for (let i = 0; i < va.length; i++) { dot += va[i] * vb[i]; normA += va[i] * va[i]; normB += vb[i] * vb[i]; }
+  }
+  return normA > 0 && normB > 0 ? dot / Math.sqrt(normA * normB) : 0;
+}
+
+/** Cosine similarity of two embeddings, −1..1; 0 when either is all zeros. Throws when lengths differ. */
+export function computeEmbeddingCosine(a: ArrayLike<number>, b: ArrayLike<number>): number {
+  if (a.length !== b.length) throw new Error(`expected embeddings of equal length, got ${a.length} and ${b.length}`);
+  let dot = 0;
+  let normA = 0;
+  let normB = 0;
+  for (let i = 0; i < a.length; i++) { dot += a[i] * b[i]; normA += a[i] * a[i]; normB += b[i] * b[i]; }
+  return normA > 0 && normB > 0 ? dot / Math.sqrt(normA * normB) : 0;
+}
+
+/**
+ * How the two similarities are put on one scale: each is standardised (z-score) with the mean and
+ * standard deviation it has between incidents and library entries in the evaluation's calibration
+ * data, then mixed with `signatureWeight` (1 = signature only, 0 = embedding only).
+ */
+export interface SimilarityScale {
+  readonly signatureWeight: number;
+  readonly signatureMean: number;
+  readonly signatureSd: number;
+  readonly embeddingMean: number;
+  readonly embeddingSd: number;
+}
+
+/**
+ * The combined similarity in standard-deviation units:
+ * w·(sig − μ_sig)/σ_sig + (1 − w)·(emb − μ_emb)/σ_emb. When the signature is unknown (the caller
+ * gave no metric data) the embedding term alone is used, and vice versa, so the scale stays
+ * comparable. Both unknown → −Infinity (never accepted). Throws on a non-positive sd or a weight
+ * outside 0..1 (programmer error).
+ */
+export function combineSimilarity(signatureCosine: number | undefined, embeddingCosine: number | undefined, scale: SimilarityScale): number {
+  const w = scale.signatureWeight;
+  if (!(w >= 0 && w <= 1)) throw new Error(`expected signatureWeight in 0..1, got ${w}`);
+  if (!(scale.signatureSd > 0 && scale.embeddingSd > 0)) throw new Error(`expected positive sds, got ${scale.signatureSd} and ${scale.embeddingSd}`);
+  const zSignature = signatureCosine === undefined ? undefined : (signatureCosine - scale.signatureMean) / scale.signatureSd;
+  const zEmbedding = embeddingCosine === undefined ? undefined : (embeddingCosine - scale.embeddingMean) / scale.embeddingSd;
+  if (zSignature !== undefined && zEmbedding !== undefined) return w * zSignature + (1 - w) * zEmbedding;
+  return zSignature ?? zEmbedding ?? Number.NEGATIVE_INFINITY;
+}

@@ -1,0 +1,138 @@
+/**
+ * The incident library's say in a verdict, by competition: every library class (the team's own
+ * labels and their past incidents of built-in classes alike) is scored by its mean similarity to
+ * the query (prototypical networks, Snell et al. 2017, with a mean of similarities in place of a
+ * distance to the mean embedding). The nearest class takes the verdict only when it is one of the
+ * team's own labels, the bundled head is not confident, and the similarity clears a threshold.
+ * When the team's past incidents of a built-in class are nearer, the library stays silent: that
+ * is the head's own ground, and letting the library overrule it there cost built-in accuracy.
+ */
+import type { BlendedVerdict } from './libraryVerdict';
+import { combineSimilarity, computeEmbeddingCosine, computeSignatureCosine, type MetricSignature, type SimilarityScale } from './librarySignature';
+import { CLASSES } from './types';
+
+/** One library entry as the competition sees it. */
+export interface CompetingEntry {
+  readonly label: string;
+  /** Undefined when the entry's embedding is of another model version (not comparable). */
+  readonly embedding?: ArrayLike<number>;
+  readonly signature?: MetricSignature;
+}
+
+/** The query window as the competition sees it. */
+export interface CompetingQuery {
+  readonly embedding?: ArrayLike<number>;
+  readonly signature?: MetricSignature;
+}
+
+/** Mean raw similarities of a query to one library class. */
+export interface ClassSimilarity {
+  readonly label: string;
+  readonly exampleCount: number;
+  /** Mean signature cosine over the class's entries; undefined when the query or entries have no signature. */
+  readonly signatureCosine?: number;
+  /** Mean embedding cosine over the class's entries that have a comparable embedding; undefined when none. */
+  readonly embeddingCosine?: number;
+}
+
+/** Rule settings (see DEFAULT_COMPETITION_OPTIONS for how they were chosen). */
+export interface CompetitionOptions {
+  readonly scale: SimilarityScale;
+  /** Combined similarity (sd units) the nearest class must reach to take the verdict. */
+  readonly acceptSimilarity: number;
+  /** The library may overrule the head only when the head's top calibrated probability is ≤ this. */
+  readonly headConfidenceCap: number;
+  /** Share of probability mass the library takes when it wins, 0..1. */
+  readonly maxWeight: number;
+  /** Softmax temperature (sd units) that turns class similarities into library probabilities. */
+  readonly temperature: number;
+}
+
+/**
+ * Defaults chosen by `npm run evaluate:few-shot` (training/evaluateFewShot.ts) on its calibration
+ * half; see the comment beside the numbers for the model version and what they gave.
+ */
+export const DEFAULT_COMPETITION_OPTIONS: CompetitionOptions = {
+  scale: { signatureWeight: 0.5, signatureMean: 0.1, signatureSd: 0.4, embeddingMean: 0.5, embeddingSd: 0.3 },
+  acceptSimilarity: 1,
+  headConfidenceCap: 0.9,
+  maxWeight: 0.9,
+  temperature: 0.25,
+};
+
+/**
+ * Per library label (in order of first appearance), the mean signature cosine and mean embedding
+ * cosine of the query to that label's entries. Entries without an embedding are left out of the
+ * embedding mean only. Empty library → empty array.
+ */
+export function computeClassSimilarities(query: CompetingQuery, entries: readonly CompetingEntry[]): ClassSimilarity[] {
+  const sums = new Map<string, { count: number; sig: number; sigCount: number; emb: number; embCount: number }>();
+  for (const entry of entries) {
+    const slot = sums.get(entry.label) ?? { count: 0, sig: 0, sigCount: 0, emb: 0, embCount: 0 };
+    slot.count += 1;
+    if (query.signature !== undefined && entry.signature !== undefined) { slot.sig += computeSignatureCosine(query.signature, entry.signature); slot.sigCount += 1; }
+    if (query.embedding !== undefined && entry.embedding !== undefined) { slot.emb += computeEmbeddingCosine(query.embedding, entry.embedding); slot.embCount += 1; }
+    sums.set(entry.label, slot);
+  }
+  return [...sums].map(([label, s]) => ({
+    label, exampleCount: s.count,
+    ...(s.sigCount > 0 ? { signatureCosine: s.sig / s.sigCount } : {}),
+    ...(s.embCount > 0 ? { embeddingCosine: s.emb / s.embCount } : {}),
+  }));
+}
+
+/**
+ * Blend the head's calibrated probabilities with the library by competition. The nearest library
+ * class c* (highest combined similarity s*, see combineSimilarity; ties keep the first) takes the
+ * library weight w = maxWeight when all three hold: c* is not a built-in class, the head's top
+ * probability ≤ headConfidenceCap, and s* ≥ acceptSimilarity; otherwise w = 0 and the base
+ * verdict is returned unchanged. With w > 0: p(c) = (1 − w)·base(c) + w·q(c), q = softmax of the
+ * class similarities / temperature (a built-in label adds to its class). `libraryMatch` is set
+ * when the winner got more of its probability from the library than from the head. Throws when
+ * the base is empty or options are out of range (programmer error).
+ */
+export function competeVerdict(baseProbabilities: Readonly<Record<string, number>>, classes: readonly ClassSimilarity[], options: CompetitionOptions = DEFAULT_COMPETITION_OPTIONS): BlendedVerdict {
+  checkOptions(options);
+  const base = Object.entries(baseProbabilities);
+  if (base.length === 0) throw new Error('expected base probabilities for at least one class, got none');
+  const scores = classes.map((c) => combineSimilarity(c.signatureCosine, c.embeddingCosine, options.scale));
+  let best = -1;
+  scores.forEach((s, i) => { if (Number.isFinite(s) && (best < 0 || s > scores[best])) best = i; });
+  const headTop = Math.max(...base.map(([, p]) => p));
+  const winner = best >= 0 ? classes[best] : undefined;
+  const isAccepted = winner !== undefined && !(CLASSES as readonly string[]).includes(winner.label)
+    && headTop <= options.headConfidenceCap && scores[best] >= options.acceptSimilarity;
+  const weight = isAccepted ? options.maxWeight : 0;
+  const blended = new Map<string, number>(base.map(([name, p]) => [name, (1 - weight) * p]));
+  const libraryPart = new Map<string, number>();
+  if (weight > 0) {
+    const finite = classes.map((c, i) => ({ c, s: scores[i] })).filter((x) => Number.isFinite(x.s));
+    const top = Math.max(...finite.map((x) => x.s));
+    const exps = finite.map((x) => Math.exp((x.s - top) / options.temperature));
+    const total = exps.reduce((a, b) => a + b, 0);
+    finite.forEach((x, i) => {
+      const part = (weight * exps[i]) / total;
+      libraryPart.set(x.c.label, part);
+      blended.set(x.c.label, (blended.get(x.c.label) ?? 0) + part);
+    });
+  }
+  const ranked = [...blended].sort((a, b) => b[1] - a[1]);
+  const [className, probability] = ranked[0];
+  const runnerUp = ranked[1] ?? ['', 0];
+  const fromLibrary = libraryPart.get(className) ?? 0;
+  const winnerClass = classes.find((c) => c.label === className);
+  const isLibraryMatch = winnerClass !== undefined && fromLibrary > probability - fromLibrary;
+  return {
+    probabilities: Object.fromEntries(blended), className, probability,
+    runnerUp: { className: runnerUp[0], probability: runnerUp[1] },
+    libraryWeight: weight,
+    ...(winner !== undefined ? { nearestSimilarity: scores[best], nearestLabel: winner.label } : {}),
+    ...(isLibraryMatch ? { libraryMatch: { label: className, exampleCount: winnerClass.exampleCount } } : {}),
+  };
+}
+
+function checkOptions(options: CompetitionOptions): void {
+  if (!(options.maxWeight >= 0 && options.maxWeight <= 1)) throw new Error(`expected maxWeight in 0..1, got ${options.maxWeight}`);
+  if (!(options.temperature > 0)) throw new Error(`expected temperature > 0, got ${options.temperature}`);
+  if (Number.isNaN(options.acceptSimilarity) || Number.isNaN(options.headConfidenceCap)) throw new Error('expected numeric acceptSimilarity and headConfidenceCap, got NaN');
+}

@@ -1,0 +1,107 @@
+import assert from 'node:assert/strict';
+import * as tf from '@tensorflow/tfjs-core';
+import '@tensorflow/tfjs-backend-cpu';
+import { combineSimilarity, computeEmbeddingCosine, computeMetricSignature, computeSignatureCosine, SIGNATURE_FEATURES } from '../../../extension/core/model/librarySignature';
+import { createLibraryEntry, toMetricWindows } from '../../../extension/core/model/libraryEntry';
+import { createRandom } from '../../../training/simulator';
+
+const sig = (entries: Record<string, number[]>): Map<string, Float64Array> => new Map(Object.entries(entries).map(([k, v]) => [k, Float64Array.from(v)]));
+
+describe('metric signature cosine', () => {
+  before(async () => { await tf.setBackend('cpu'); });
+
+  it('compares only the metric ids both windows share, as one concatenated vector (hand-computed)', () => {
+    // Shared ids: cpu and pool. Concatenated a = (1, 2, 0, 1), b = (2, 1, 1, 1) (two features each for brevity).
+    // dot = 2 + 2 + 0 + 1 = 5; |a|² = 6; |b|² = 7 → cos = 5 / sqrt(42) ≈ 0.7715.
+    const a = sig({ cpu: [1, 2], pool: [0, 1], onlyInA: [9, 9] });
+    const b = sig({ pool: [1, 1], cpu: [2, 1], onlyInB: [-9, 3] });
+    assert.ok(Math.abs(computeSignatureCosine(a, b) - 5 / Math.sqrt(42)) < 1e-12);
+    // Symmetric, whatever the id order.
+    assert.ok(Math.abs(computeSignatureCosine(b, a) - 5 / Math.sqrt(42)) < 1e-12);
+  });
+
+  it('is 0 when no metric id is shared or the shared part is all zeros', () => {
+    assert.equal(computeSignatureCosine(sig({ a: [1, 2] }), sig({ b: [1, 2] })), 0);
+    assert.equal(computeSignatureCosine(sig({ a: [0, 0] }), sig({ a: [1, 2] })), 0);
+    assert.equal(computeSignatureCosine(new Map(), new Map()), 0);
+  });
+
+  it('names the metric when two signatures have feature vectors of different length', () => {
+    assert.throws(() => computeSignatureCosine(sig({ pool: [1, 2] }), sig({ pool: [1, 2, 3] })), /expected signature vectors of length 2, got 3 for metric pool/);
+  });
+
+  it('embedding cosine agrees with TensorFlow.js cosineDistance (1 − cos) on random vectors', () => {
+    // Reference: tf.losses.cosineDistance of L2-normalised inputs = 1 − cosine similarity (tfjs-core docs).
+    const rng = createRandom(7);
+    for (let trial = 0; trial < 5; trial++) {
+      const a = Array.from({ length: 16 }, () => rng.uniform(-1, 1));
+      const b = Array.from({ length: 16 }, () => rng.uniform(-1, 1));
+      const distance = tf.tidy(() => tf.losses.cosineDistance(tf.div(tf.tensor1d(a), tf.norm(tf.tensor1d(a))), tf.div(tf.tensor1d(b), tf.norm(tf.tensor1d(b))), 0).dataSync()[0]);
+      assert.ok(Math.abs(computeEmbeddingCosine(a, b) - (1 - distance)) < 1e-5, `trial ${trial}`);
+    }
+  });
+});
+
+describe('computeMetricSignature', () => {
+  it('matches a worked example: a window held at median + 1.4826·MAD·sinh(1) reads 1 on every kept feature', () => {
+    // Baseline 10, 12, 8, 11, 9: median 10, MAD 1, robust scale 1.4826·MAD (Iglewicz & Hoaglin 1993,
+    // common practice). A window at 10 + 1.4826·sinh(1) is z = sinh(1), squashed asinh(z) = 1 at
+    // every sample, so the mean, the four quarter means, max and min are all 1.
+    const level = 10 + 1.4826 * Math.sinh(1);
+    const signature = computeMetricSignature([{ id: 'pantry_db_pool_in_use', family: 'saturation', baseline: [10, 12, 8, 11, 9], window: [level, level, level, level] }]);
+    const values = signature.get('pantry_db_pool_in_use');
+    assert.ok(values);
+    assert.equal(values.length, SIGNATURE_FEATURES.length);
+    for (const v of values) assert.ok(Math.abs(v - 1) < 1e-5, `expected 1, got ${v}`);
+  });
+
+  it('leaves out metrics the encoder cannot normalise and keeps the first of a repeated id', () => {
+    const signature = computeMetricSignature([
+      { id: 'a', family: 'cpu', baseline: [1, 2, 3, 4], window: [5, 6, 7] },
+      { id: 'a', family: 'cpu', baseline: [1, 2, 3, 4], window: [1, 1, 1] },
+      { id: 'short', family: 'cpu', baseline: [1, 2, 3, 4], window: [5, 6] },
+      { id: 'gaps', family: 'cpu', baseline: [Number.NaN, Number.NaN, 1, 2], window: [5, 6, 7] },
+    ]);
+    assert.deepEqual([...signature.keys()], ['a']);
+    assert.ok(signature.get('a')![0] > 1, 'the first "a" (window above its baseline) is kept');
+    assert.equal(computeMetricSignature([]).size, 0);
+  });
+
+  it('gives the same signature from full-resolution data and from the library entry that stores it', () => {
+    const rng = createRandom(11);
+    const metrics = ['basket_api_requests_total', 'pantry_db_pool_pending'].map((id, m) => ({
+      id, name: id, family: 'saturation' as const,
+      baseline: Float64Array.from({ length: 300 }, () => 50 + rng.normal() * 5),
+      window: Float64Array.from({ length: 200 }, (_, t) => 50 + (m + 1) * t * 0.3 + rng.normal() * 5),
+    }));
+    const entry = createLibraryEntry({
+      id: 'e', label: 'pool_exhaustion', window: { startMs: 0, endMs: 1 }, baseline: { startMs: 0, endMs: 1 }, exportSha256: '0'.repeat(64),
+      exportFile: 'exports/pantry-db.csv', createdMs: 0, modelVersion: 'v', embedding: [1], metrics,
+    });
+    const full = computeMetricSignature(metrics);
+    const stored = computeMetricSignature(toMetricWindows(entry));
+    // Stored numbers are rounded to 7 significant digits; the features may differ only by that rounding.
+    assert.ok(computeSignatureCosine(full, stored) > 1 - 1e-9);
+    assert.deepEqual([...stored.keys()], [...full.keys()]);
+  });
+});
+
+describe('combineSimilarity', () => {
+  const scale = { signatureWeight: 0.25, signatureMean: 0.2, signatureSd: 0.4, embeddingMean: 0.6, embeddingSd: 0.2 };
+
+  it('mixes the two z-scores with the signature weight (hand-computed)', () => {
+    // z_sig = (0.8 − 0.2)/0.4 = 1.5; z_emb = (0.7 − 0.6)/0.2 = 0.5; 0.25·1.5 + 0.75·0.5 = 0.75.
+    assert.ok(Math.abs(combineSimilarity(0.8, 0.7, scale) - 0.75) < 1e-12);
+  });
+
+  it('uses the known term alone when the other is missing, and −Infinity when both are', () => {
+    assert.ok(Math.abs(combineSimilarity(undefined, 0.7, scale) - 0.5) < 1e-12);
+    assert.ok(Math.abs(combineSimilarity(0.8, undefined, scale) - 1.5) < 1e-12);
+    assert.equal(combineSimilarity(undefined, undefined, scale), Number.NEGATIVE_INFINITY);
+  });
+
+  it('refuses a weight outside 0..1 or a zero sd, naming the value', () => {
+    assert.throws(() => combineSimilarity(0, 0, { ...scale, signatureWeight: 1.5 }), /expected signatureWeight in 0..1, got 1.5/);
+    assert.throws(() => combineSimilarity(0, 0, { ...scale, embeddingSd: 0 }), /expected positive sds/);
+  });
+});
