@@ -7,7 +7,20 @@ import { convertCounterToRate } from '../../extension/core/frame/alignSeries';
 
 /** Rates on a regular grid of `stepMs`; the first sample (and leading gaps) have no rate: NaN. */
 export function convertCounterToRates(values: Float64Array, stepMs: number): Float64Array {
-  const timesMs = new Float64Array(values.length);
-  for (let i = 0; i < values.length; i += 1) timesMs[i] = i * stepMs;
-  return convertCounterToRate(timesMs, values).rates;
+  return convertCounterToRate(gridTimes(values.length, stepMs), values).rates;
+}
+
+/**
+ * Grid times 0, stepMs, 2·stepMs, … for at least `length` steps, shared between calls: every
+ * counter of an example sits on the same grid, and the converter only reads the times.
+ */
+let cachedTimesMs = new Float64Array(0);
+let cachedStepMs = Number.NaN;
+function gridTimes(length: number, stepMs: number): Float64Array {
+  if (stepMs !== cachedStepMs || cachedTimesMs.length < length) {
+    cachedTimesMs = new Float64Array(Math.max(length, 1024));
+    for (let i = 0; i < cachedTimesMs.length; i += 1) cachedTimesMs[i] = i * stepMs;
+    cachedStepMs = stepMs;
+  }
+  return cachedTimesMs.subarray(0, length);
 }

@@ -32,27 +32,57 @@ export function measureFaultEvidence(metrics: readonly EvidenceMetric[], observa
   const { faulted, counterfactual } = observables;
   let best = 0;
   const effects = new Float64Array(windowSteps);
+  const faultedTail = faulted.tail;
+  const quietTail = counterfactual.tail;
   for (const { spec, baseline } of metrics) {
     if (spec.role.isIrrelevant) continue;
     const source = spec.role.source;
     const withFault = faulted[source];
     const withoutFault = counterfactual[source];
-    const stats = computeRobustStats(baseline);
-    const scale = Math.max(stats.scale, RELATIVE_SCALE_FLOOR * Math.abs(stats.median), 1e-12);
     const factor = Math.abs(spec.factor);
+    const tailWeight = spec.tailWeight;
+    // |a − b| first, divided by the scale below: the same operations in the same order as one
+    // expression, so the effects are bit for bit what they were.
+    let isUnmoved = true;
     for (let k = 0; k < windowSteps; k += 1) {
       const i = windowStart + k;
       let a = (withFault[i] as number) * factor;
       let b = (withoutFault[i] as number) * factor;
-      if (spec.tailWeight > 0) {
-        a *= (faulted.tail[i] as number) ** spec.tailWeight;
-        b *= (counterfactual.tail[i] as number) ** spec.tailWeight;
+      if (tailWeight > 0) {
+        a *= (faultedTail[i] as number) ** tailWeight;
+        b *= (quietTail[i] as number) ** tailWeight;
       }
-      effects[k] = Math.abs(a - b) / scale;
+      const difference = Math.abs(a - b);
+      if (difference !== 0) isUnmoved = false;
+      effects[k] = difference;
     }
-    const sorted = Array.from(effects).sort((x, y) => x - y);
-    const effect = sorted[Math.floor(EFFECT_QUANTILE * (sorted.length - 1))] as number;
+    // A metric the fault did not move has effect 0 whatever its scale, and 0 never beats `best`:
+    // its baseline statistics would be computed for nothing.
+    if (isUnmoved) continue;
+    const stats = computeRobustStats(baseline);
+    const scale = Math.max(stats.scale, RELATIVE_SCALE_FLOOR * Math.abs(stats.median), 1e-12);
+    let hasNaN = false;
+    for (let k = 0; k < windowSteps; k += 1) {
+      const effect = (effects[k] as number) / scale;
+      if (effect !== effect) hasNaN = true;
+      effects[k] = effect;
+    }
+    const effect = hasNaN ? pickQuantileWithNaN(effects) : pickQuantile(effects);
     if (effect > best) best = effect;
   }
   return best;
+}
+
+/** The EFFECT_QUANTILE order statistic of NaN-free values (sorts `values` in place). */
+function pickQuantile(values: Float64Array): number {
+  // Without NaN a numeric typed-array sort orders exactly as the comparator x − y would, and the
+  // effects are never −0 (absolute values), so the picked value is the same.
+  values.sort();
+  return values[Math.floor(EFFECT_QUANTILE * (values.length - 1))] as number;
+}
+
+/** As pickQuantile, with the comparator sort the evidence has always used when a NaN is present. */
+function pickQuantileWithNaN(values: Float64Array): number {
+  const sorted = Array.from(values).sort((x, y) => x - y);
+  return sorted[Math.floor(EFFECT_QUANTILE * (sorted.length - 1))] as number;
 }

@@ -64,33 +64,46 @@ export type Observables = Record<ObservableKey, Float64Array>;
 
 /** Fresh drivers for `n` steps: scales at 1, extras at 0. */
 export function createDrivers(n: number): Drivers {
-  // One object literal: V8 keeps it in fast (hidden-class) mode, which the per-step loops need.
-  const zeros = (): Float64Array => new Float64Array(n);
-  const ones = (): Float64Array => new Float64Array(n).fill(1);
-  return {
-    trafficScale: ones(), cpuExtra: zeros(), cpuScale: ones(), steal: zeros(), memExtra: zeros(), memLeak: zeros(), diskExtra: zeros(),
-    callerDelayS: zeros(), dependencyDelayS: zeros(), lossFraction: zeros(), errorExtra: zeros(), latencyScale: ones(),
-    poolHold: ones(), restart: zeros(), tailExtra: zeros(),
-  };
-}
-
-/** Copies of every driver series (the same keys in the same order as createDrivers). */
-export function copyDrivers(d: Drivers): Drivers {
-  return {
-    trafficScale: d.trafficScale.slice(), cpuExtra: d.cpuExtra.slice(), cpuScale: d.cpuScale.slice(), steal: d.steal.slice(),
-    memExtra: d.memExtra.slice(), memLeak: d.memLeak.slice(), diskExtra: d.diskExtra.slice(), callerDelayS: d.callerDelayS.slice(),
-    dependencyDelayS: d.dependencyDelayS.slice(), lossFraction: d.lossFraction.slice(), errorExtra: d.errorExtra.slice(),
-    latencyScale: d.latencyScale.slice(), poolHold: d.poolHold.slice(), restart: d.restart.slice(), tailExtra: d.tailExtra.slice(),
-  };
+  const d = viewDrivers(new Float64Array(DRIVER_KEYS.length * n), n);
+  d.trafficScale.fill(1);
+  d.cpuScale.fill(1);
+  d.latencyScale.fill(1);
+  d.poolHold.fill(1);
+  return d;
 }
 
 /**
- * Zeroed observables for `n` steps. An object literal, not keys added in a loop: V8 turns an
- * object grown by more than a dozen computed-key stores into a hash table, and every
- * `o.cpu[i]` in the render loops then becomes a dictionary lookup.
+ * Drivers as views of one buffer of DRIVER_KEYS.length × n values. One allocation instead of
+ * fifteen (each typed array of this size gets its own off-heap store, costly to make and free),
+ * and an object literal, which V8 keeps in fast (hidden-class) mode for the per-step loops.
+ */
+function viewDrivers(buffer: Float64Array, n: number): Drivers {
+  let k = 0;
+  const v = (): Float64Array => buffer.subarray(n * k, n * ++k);
+  return {
+    trafficScale: v(), cpuExtra: v(), cpuScale: v(), steal: v(), memExtra: v(), memLeak: v(), diskExtra: v(),
+    callerDelayS: v(), dependencyDelayS: v(), lossFraction: v(), errorExtra: v(), latencyScale: v(),
+    poolHold: v(), restart: v(), tailExtra: v(),
+  };
+}
+
+/** Copies of every driver series. */
+export function copyDrivers(d: Drivers): Drivers {
+  const n = d.trafficScale.length;
+  const out = viewDrivers(new Float64Array(DRIVER_KEYS.length * n), n);
+  for (const key of DRIVER_KEYS) out[key].set(d[key]);
+  return out;
+}
+
+/**
+ * Zeroed observables for `n` steps, views of one buffer (one allocation instead of 31). An object
+ * literal, not keys added in a loop: V8 turns an object grown by more than a dozen computed-key
+ * stores into a hash table, and every `o.cpu[i]` in the render loops then becomes a lookup.
  */
 export function createObservables(n: number): Observables {
-  const z = (): Float64Array => new Float64Array(n);
+  const buffer = new Float64Array(OBSERVABLE_KEYS.length * n);
+  let k = 0;
+  const z = (): Float64Array => buffer.subarray(n * k, n * ++k);
   return {
     traffic: z(), cpu: z(), steal: z(), iowait: z(), idle: z(), load: z(), throttle: z(), mem: z(), memAvailable: z(), gc: z(),
     diskBusy: z(), diskQueue: z(), diskLatency: z(), diskBytes: z(), netBytes: z(), retrans: z(), drops: z(),
@@ -99,9 +112,8 @@ export function createObservables(n: number): Observables {
   };
 }
 
-/** AR(1) noise with stationary standard deviation `sigma` (phi = memory per step). */
-export function drawAr1(rng: Random, n: number, phi: number, sigma: number): Float64Array {
-  const out = new Float64Array(n);
+/** AR(1) noise with stationary standard deviation `sigma` (phi = memory per step), into `out` (length >= n) when given. */
+export function drawAr1(rng: Random, n: number, phi: number, sigma: number, out: Float64Array = new Float64Array(n)): Float64Array {
   const innovation = sigma * Math.sqrt(1 - phi * phi);
   let x = rng.normal() * sigma;
   for (let i = 0; i < n; i += 1) {
@@ -119,8 +131,9 @@ export function drawBaseTraffic(p: ServiceParams, rng: Random, timesMs: Float64A
   const n = timesMs.length;
   // Noise memory of about 10 minutes whatever the step, so 1 s and 5 min grids both look real.
   const phi = Math.exp(-stepMs / 600_000);
-  const ar = drawAr1(rng, n, Math.min(phi, 0.999), p.trafficNoiseSigma);
-  const slow = drawAr1(rng, n, Math.min(0.9995, Math.exp(-stepMs / 14_400_000)), p.slowDriftSigma);
+  const scratch = new Float64Array(2 * n);
+  const ar = drawAr1(rng, n, Math.min(phi, 0.999), p.trafficNoiseSigma, scratch.subarray(0, n));
+  const slow = drawAr1(rng, n, Math.min(0.9995, Math.exp(-stepMs / 14_400_000)), p.slowDriftSigma, scratch.subarray(n));
   const out = new Float64Array(n);
   for (let i = 0; i < n; i += 1) {
     const angle = (2 * Math.PI * (timesMs[i] as number)) / DAY_MS + p.dailyPhaseRad;
@@ -261,11 +274,12 @@ function deriveBoth(p: ServiceParams, d: Drivers, qd: Drivers | undefined, baseT
   const n = baseTraffic.length;
   const o = createObservables(n);
   const phi = Math.min(0.995, Math.exp(-stepMs / 300_000));
-  const cpuNoise = drawAr1(rng, n, phi, p.cpuNoiseSigma);
-  const memNoise = drawAr1(rng, n, Math.min(0.999, Math.exp(-stepMs / 1_800_000)), p.memNoiseSigma);
-  const diskNoise = drawAr1(rng, n, phi, 0.15);
+  const scratch = new Float64Array(4 * n);
+  const cpuNoise = drawAr1(rng, n, phi, p.cpuNoiseSigma, scratch.subarray(0, n));
+  const memNoise = drawAr1(rng, n, Math.min(0.999, Math.exp(-stepMs / 1_800_000)), p.memNoiseSigma, scratch.subarray(n, 2 * n));
+  const diskNoise = drawAr1(rng, n, phi, 0.15, scratch.subarray(2 * n, 3 * n));
   // Slow wander of per-request cost, independent of traffic: long baselines are not flat.
-  const slow = drawAr1(rng, n, Math.min(0.9995, Math.exp(-stepMs / 14_400_000)), p.slowDriftSigma);
+  const slow = drawAr1(rng, n, Math.min(0.9995, Math.exp(-stepMs / 14_400_000)), p.slowDriftSigma, scratch.subarray(3 * n));
   const noise: StepNoise = { baseTraffic, cpu: cpuNoise, mem: memNoise, disk: diskNoise, slow };
   const stepS = stepMs / 1000;
   let uptimeS = rng.uniform(3600, 40 * 86400);

@@ -50,64 +50,80 @@ function quantise(values: Float64Array, quantum: number): void {
   for (let i = 0; i < values.length; i += 1) values[i] = Math.round((values[i] as number) / quantum) * quantum;
 }
 
-function renderValues(s: SeriesSpec, o: Observables, rng: Random, stepMs: number, burstProbability: number, shared: Float64Array, logTail: Float64Array): Float64Array {
-  const n = o.traffic.length;
-  const out = new Float64Array(n);
+/**
+ * Renders series `s` into `out` (length n). `walk` is scratch for irrelevant metrics; `tailFactor`
+ * holds exp(s.tailWeight · log tail) per step (shared by every copy with that weight).
+ */
+function renderValues(s: SeriesSpec, o: Observables, rng: Random, stepMs: number, burstProbability: number, shared: Float64Array, tailFactor: Float64Array | undefined, out: Float64Array, walk: Float64Array): void {
+  const n = out.length;
+  const factor = s.factor;
+  const noiseSigma = s.noiseSigma;
   if (s.role.isIrrelevant) {
-    const walk = drawAr1(rng, n, Math.min(0.999, Math.exp(-stepMs / 3_600_000)), 0.2);
+    drawAr1(rng, n, Math.min(0.999, Math.exp(-stepMs / 3_600_000)), 0.2, walk);
     let shift = 0;
     for (let i = 0; i < n; i += 1) {
       if (rng.chance(0.002)) shift += 0.3 * rng.normal();
-      out[i] = s.factor * Math.exp((walk[i] as number) + shift + s.noiseSigma * rng.normal());
+      out[i] = factor * Math.exp((walk[i] as number) + shift + noiseSigma * rng.normal());
     }
-    return out;
+    return;
   }
   const base = o[s.role.source];
   const isRatio = RATIO_SOURCES.has(s.role.source);
-  const ceiling = Math.abs(s.factor);
-  const sigma = s.noiseSigma;
+  const ceiling = Math.abs(factor);
+  const sigma = noiseSigma;
   // Next burst position drawn geometrically: one draw per burst instead of one per step.
   // Quantile copies get their bursts from the shared tail instead, so they never cross.
   const ownBurstProbability = s.tailWeight > 0 ? 0 : burstProbability;
+  const logNoBurst = Math.log(1 - ownBurstProbability);
   // Quantiles of one distribution move almost together; pod/node copies less so.
   const sharedWeight = s.tailWeight > 0 ? 0.95 : 0.8;
   const ownWeight = Math.sqrt(1 - sharedWeight * sharedWeight);
-  const nextBurst = (from: number): number =>
-    ownBurstProbability > 0 ? from + Math.floor(Math.log(1 - rng.next()) / Math.log(1 - ownBurstProbability)) : n;
-  let burstAt = nextBurst(0);
+  let burstAt = ownBurstProbability > 0 ? Math.floor(Math.log(1 - rng.next()) / logNoBurst) : n;
   for (let i = 0; i < n; i += 1) {
-    let v = (base[i] as number) * s.factor;
-    if (s.tailWeight > 0) v *= Math.exp(s.tailWeight * (logTail[i] as number));
+    let v = (base[i] as number) * factor;
+    if (tailFactor) v *= tailFactor[i] as number;
     // 1 + σz is lognormal noise to first order for σ <= 0.16, at a fraction of the cost. Copies
     // of one role share most of it (weights with squares summing to 1), so percentiles stay
     // ordered and pod/node copies move together, as real family members do.
     v *= 1 + sigma * (sharedWeight * (shared[i] as number) + ownWeight * rng.normal());
     if (i === burstAt) {
       v *= 1 + 0.4 * Math.abs(rng.studentT2());
-      burstAt = nextBurst(i + 1);
+      burstAt = i + 1 + Math.floor(Math.log(1 - rng.next()) / logNoBurst);
     }
     // Ratios keep their natural ceiling (100 % busy, 100 % success).
     if (isRatio && v > ceiling) v = ceiling;
     out[i] = v > 0 ? v : 0;
   }
-  return out;
 }
 
-/** Turns per-second rates into a cumulative counter; resets on restarts and at random. */
-function accumulate(s: SeriesSpec, rates: Float64Array, o: Observables, rng: Random, stepMs: number): Float64Array {
-  const n = rates.length;
-  const out = new Float64Array(n);
+/** Turns per-second rates into a cumulative counter, in place; resets on restarts and at random. */
+function accumulate(s: SeriesSpec, values: Float64Array, o: Observables, rng: Random, stepMs: number): void {
+  const n = values.length;
   const stepS = stepMs / 1000;
-  let total = s.form.isInteger ? Math.floor(rng.logUniform(1, 1e7)) : rng.logUniform(1, 1e6);
+  const isInteger = s.form.isInteger;
+  const restarts = o.restarts;
+  const resetsOnRestart = s.role.source !== 'restarts';
+  const resetProbability = s.resetProbability;
+  let total = isInteger ? Math.floor(rng.logUniform(1, 1e7)) : rng.logUniform(1, 1e6);
   for (let i = 0; i < n; i += 1) {
-    let increment = (rates[i] as number) * stepS;
-    if (s.form.isInteger) increment = Math.floor(increment + rng.next());
-    const isRestart = i > 0 && (o.restarts[i] as number) > (o.restarts[i - 1] as number);
-    if ((isRestart && s.role.source !== 'restarts') || rng.chance(s.resetProbability)) total = 0;
+    let increment = (values[i] as number) * stepS;
+    if (isInteger) increment = Math.floor(increment + rng.next());
+    const isRestart = i > 0 && (restarts[i] as number) > (restarts[i - 1] as number);
+    if ((isRestart && resetsOnRestart) || rng.chance(resetProbability)) total = 0;
     total += increment;
-    out[i] = total;
+    values[i] = total;
   }
-  return out;
+}
+
+/** exp(tailWeight · log tail) per step, computed once per weight (quantile copies of many roles share a weight). */
+function findTailFactor(cache: Map<number, Float64Array>, tailWeight: number, logTail: Float64Array): Float64Array {
+  let factor = cache.get(tailWeight);
+  if (!factor) {
+    factor = new Float64Array(logTail.length);
+    for (let i = 0; i < logTail.length; i += 1) factor[i] = Math.exp(tailWeight * (logTail[i] as number));
+    cache.set(tailWeight, factor);
+  }
+  return factor;
 }
 
 function punchGaps(values: Float64Array, probability: number, rng: Random): void {
@@ -135,18 +151,28 @@ export function renderSystem(spec: SystemSpec, request: RenderRequest, rng: Rand
   const both = quietDrivers ? deriveObservablesWithCounterfactual(spec.params, drivers, quietDrivers, baseTraffic, rng, spec.stepMs) : undefined;
   const o = both ? both.faulted : deriveObservables(spec.params, drivers, baseTraffic, rng, spec.stepMs);
   const quiet = both?.counterfactual;
+  // Every per-step array of the series comes from one allocation: each typed array of this size
+  // otherwise gets its own off-heap store, and making and freeing those cost more than filling them.
+  const roleCount = new Set(spec.series.map((s) => s.role.key)).size;
+  const arena = new Float64Array(n * (spec.series.length + roleCount + 2));
+  let arenaUsed = 0;
+  const carve = (): Float64Array => arena.subarray(arenaUsed, (arenaUsed += n));
+  const walk = carve();
+  const logTail = carve();
+  const tail = o.tail;
+  for (let i = 0; i < n; i += 1) logTail[i] = Math.log(tail[i] as number);
   const sharedNoise = new Map<string, Float64Array>();
   const quanta = new Map<string, number>();
-  const logTail = new Float64Array(n);
-  for (let i = 0; i < n; i += 1) logTail[i] = Math.log(o.tail[i] as number);
+  const tailFactors = new Map<number, Float64Array>();
   const series: SimSeries[] = spec.series.map((s) => {
     let shared = sharedNoise.get(s.role.key);
     if (!shared) {
-      shared = new Float64Array(n);
+      shared = carve();
       for (let i = 0; i < n; i += 1) shared[i] = rng.normal();
       sharedNoise.set(s.role.key, shared);
     }
-    const rendered = renderValues(s, o, rng, spec.stepMs, spec.params.burstProbability, shared, logTail);
+    const rendered = carve();
+    renderValues(s, o, rng, spec.stepMs, spec.params.burstProbability, shared, s.tailWeight > 0 ? findTailFactor(tailFactors, s.tailWeight, logTail) : undefined, rendered, walk);
     if (s.kind === 'gauge' && s.significantDigits > 0) {
       // The first copy of a role fixes the quantum for all its copies (same exporter, same format).
       let quantum = quanta.get(s.role.key);
@@ -156,9 +182,9 @@ export function renderSystem(spec: SystemSpec, request: RenderRequest, rng: Rand
       }
       quantise(rendered, quantum);
     }
-    const values = s.kind === 'counter' ? accumulate(s, rendered, o, rng, spec.stepMs) : rendered;
-    punchGaps(values, s.gapProbability, rng);
-    return { name: s.name, labels: s.labels, unit: s.unit, kind: s.kind, trueFamily: s.trueFamily, role: s.role.key, values };
+    if (s.kind === 'counter') accumulate(s, rendered, o, rng, spec.stepMs);
+    punchGaps(rendered, s.gapProbability, rng);
+    return { name: s.name, labels: s.labels, unit: s.unit, kind: s.kind, trueFamily: s.trueFamily, role: s.role.key, values: rendered };
   });
   const incidents = request.faults
     .filter((f) => f.label !== 'normal')

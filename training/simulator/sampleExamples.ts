@@ -100,14 +100,13 @@ const KEY_ROLES: Readonly<Record<SimClass, readonly string[]>> = {
 
 const BASE_TIME_MS = Date.UTC(2026, 0, 5);
 
-const familyCache = new Map<string, Family>();
-/** inferFamily is pure, and the same few hundred names and label sets recur in every example. */
-function inferFamilyCached(name: string, unit: string | undefined, labels: Readonly<Record<string, string>>): Family {
-  const key = `${name}\u0000${unit ?? ''}\u0000${JSON.stringify(labels)}`;
-  let family = familyCache.get(key);
+const familyCache = new WeakMap<SeriesSpec, Family>();
+/** inferFamily is pure, and a system's series specs recur in every example drawn from it. */
+function inferSpecFamily(spec: SeriesSpec): Family {
+  let family = familyCache.get(spec);
   if (family === undefined) {
-    family = inferFamily(name, unit, labels);
-    familyCache.set(key, family);
+    family = inferFamily(spec.name, spec.unit, spec.labels);
+    familyCache.set(spec, family);
   }
   return family;
 }
@@ -212,7 +211,7 @@ function drawExample(spec: SystemSpec, label: SimClass, rng: Random, windowRange
     const values = isCounter ? convertCounterToRates(s.values, system.stepMs) : s.values;
     metrics.push({
       id: (kept[k] as SeriesSpec).id,
-      family: inferFamilyCached(s.name, s.unit, s.labels),
+      family: inferSpecFamily(kept[k] as SeriesSpec),
       baseline: values.slice(layout.baselineStart, layout.baselineStart + baselineSteps),
       window: values.slice(layout.windowStart, layout.windowStart + windowSteps),
     });

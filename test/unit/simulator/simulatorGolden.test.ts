@@ -2,6 +2,7 @@ import assert from 'node:assert/strict';
 import { createHash, type Hash } from 'node:crypto';
 import { CLASSES } from '../../../extension/core/model/types';
 import { generateSystem, HELD_OUT_CLASSES, sampleExamples, type SimSystem, type TrainingExample } from '../../../training/simulator';
+import { inverseNormalCdf, readNormalTable } from '../../../training/simulator/random';
 
 // Golden hashes of the simulator output. The bundled model is trained from this simulator, so
 // `npm run train` must reproduce the same examples bit for bit: performance work on the simulator
@@ -106,6 +107,18 @@ describe('simulator output is bit-identical to the golden hashes (training repro
       assert.equal(hashSystem(generateSystem(c.seed, c.options)), c.expected);
     });
   }
+
+  it('the half normal table mirrored gives every entry of the full table, inverseNormalCdf((k + ½) / 65,536), bit for bit', () => {
+    // The generator keeps only the lower half of its 65,536-entry table; the upper half must be
+    // the exact negation of the mirrored entry, or every normal draw above the median would move.
+    let mismatches = 0;
+    for (let k = 0; k < 65_536; k += 1) {
+      if (!Object.is(readNormalTable(k), inverseNormalCdf((k + 0.5) / 65_536))) mismatches += 1;
+    }
+    assert.equal(mismatches, 0);
+    // Acklam's approximation at the quartiles: ±0.6744897501960817 (standard normal table, from memory, to 1.15e-9).
+    assert.ok(Math.abs(inverseNormalCdf(0.75) - 0.6744897501960817) < 1e-8);
+  });
 
   it('the hash sees a single-bit change in one value (so a golden match means equality)', () => {
     const examples = sampleExamples({ seed: 5, count: 4, systemSeeds: [8] });
