@@ -16,11 +16,14 @@ export function convertCounterToRates(values: Float64Array, stepMs: number): Flo
  */
 let cachedTimesMs = new Float64Array(0);
 let cachedStepMs = Number.NaN;
+let cachedView = new Float64Array(0);
 function gridTimes(length: number, stepMs: number): Float64Array {
   if (stepMs !== cachedStepMs || cachedTimesMs.length < length) {
     cachedTimesMs = new Float64Array(Math.max(length, 1024));
     for (let i = 0; i < cachedTimesMs.length; i += 1) cachedTimesMs[i] = i * stepMs;
     cachedStepMs = stepMs;
+    cachedView = cachedTimesMs.subarray(0, length);
   }
-  return cachedTimesMs.subarray(0, length);
+  if (cachedView.length !== length) cachedView = cachedTimesMs.subarray(0, length);
+  return cachedView;
 }

@@ -110,17 +110,19 @@ export function createRandom(seed: number): Random {
  * `this`). Every draw consumes exactly one uniform except studentT.
  */
 class Mulberry32 implements Random {
-  private state: number;
+  // The 32-bit state in a typed array: as a plain field, every value outside the small-integer
+  // range (most of them) was boxed into a fresh heap number on each draw.
+  private readonly state = new Int32Array(1);
   private readonly table: Float64Array;
 
   constructor(initialState: number) {
-    this.state = initialState | 0;
+    this.state[0] = initialState | 0;
     this.table = getNormalTable();
   }
 
   next(): number {
-    const state = (this.state + 0x6d2b79f5) | 0;
-    this.state = state;
+    const state = ((this.state[0] as number) + 0x6d2b79f5) | 0;
+    this.state[0] = state;
     let t = state;
     t = Math.imul(t ^ (t >>> 15), t | 1);
     t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
@@ -171,6 +173,6 @@ class Mulberry32 implements Random {
   }
 
   clone(): Random {
-    return new Mulberry32(this.state);
+    return new Mulberry32(this.state[0] as number);
   }
 }

@@ -37,12 +37,21 @@ const RATIO_SOURCES = new Set(['cpu', 'steal', 'iowait', 'idle', 'throttle', 'me
 function findQuantum(values: Float64Array, digits: number): number {
   // Median of at most 33 evenly spaced samples: the level only picks the rounding quantum.
   const stride = Math.max(1, Math.floor(values.length / 33));
-  const picks: number[] = [];
-  for (let i = 0; i < values.length; i += stride) picks.push(values[i] as number);
-  picks.sort((a, b) => a - b);
-  const level = Math.abs(picks[picks.length >> 1] as number);
+  const count = Math.ceil(values.length / stride);
+  const picks = count <= quantumPicks.length ? quantumPicks.subarray(0, count) : new Float64Array(count);
+  let hasNaN = false;
+  for (let i = 0, k = 0; i < values.length; i += stride, k += 1) {
+    const v = values[i] as number;
+    if (v !== v) hasNaN = true;
+    picks[k] = v;
+  }
+  // Without NaN a numeric typed-array sort orders as the comparator a − b does; ±0 may swap
+  // places, and the level is an absolute value, so the median level is the same.
+  const sorted = hasNaN ? Array.from(picks).sort((a, b) => a - b) : picks.sort();
+  const level = Math.abs(sorted[sorted.length >> 1] as number);
   return level > 0 ? 10 ** (Math.floor(Math.log10(level)) - digits + 1) : Number.NaN;
 }
+const quantumPicks = new Float64Array(128);
 
 /** Rounds every value to a multiple of `quantum` (a monotone map, so ordered copies stay ordered). */
 function quantise(values: Float64Array, quantum: number): void {

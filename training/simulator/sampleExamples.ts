@@ -206,14 +206,32 @@ function drawExample(spec: SystemSpec, label: SimClass, rng: Random, windowRange
   }, rng);
   const metrics: MetricWindow[] = [];
   const truth: MetricTruth[] = [];
+  // Every baseline and window of the example lives in one buffer (views, same values as slices):
+  // tens of thousands of small typed arrays, each with its own store, made the collector the
+  // largest cost of a long sampling run.
+  const baselineEnd = layout.baselineStart + baselineSteps;
+  const windowEnd = layout.windowStart + windowSteps;
+  const sources = system.series.map((s) => (s.kind === 'counter' ? convertCounterToRates(s.values, system.stepMs) : s.values));
+  const rangeLength = (length: number, start: number, end: number): number => Math.max(0, Math.min(end, length) - start);
+  let total = 0;
+  for (const values of sources) total += rangeLength(values.length, layout.baselineStart, baselineEnd) + rangeLength(values.length, layout.windowStart, windowEnd);
+  const store = new Float64Array(total);
+  let used = 0;
+  const copyRange = (values: Float64Array, start: number, end: number): Float64Array => {
+    const length = rangeLength(values.length, start, end);
+    const view = store.subarray(used, used + length);
+    for (let i = 0; i < length; i += 1) view[i] = values[start + i] as number;
+    used += length;
+    return view;
+  };
   system.series.forEach((s, k) => {
     const isCounter = s.kind === 'counter';
-    const values = isCounter ? convertCounterToRates(s.values, system.stepMs) : s.values;
+    const values = sources[k] as Float64Array;
     metrics.push({
       id: (kept[k] as SeriesSpec).id,
       family: inferSpecFamily(kept[k] as SeriesSpec),
-      baseline: values.slice(layout.baselineStart, layout.baselineStart + baselineSteps),
-      window: values.slice(layout.windowStart, layout.windowStart + windowSteps),
+      baseline: copyRange(values, layout.baselineStart, baselineEnd),
+      window: copyRange(values, layout.windowStart, windowEnd),
     });
     truth.push({ role: s.role ?? 'unknown', trueFamily: s.trueFamily, isCounter, name: s.name, unit: s.unit, labels: s.labels });
   });
