@@ -88,6 +88,13 @@ export function computeSignatureCosine(a: MetricSignature, b: MetricSignature): 
   return normA > 0 && normB > 0 ? dot / Math.sqrt(normA * normB) : 0;
 }
 
+/** True when the two signatures have at least one metric id in common (else their cosine carries no evidence). */
+export function hasSharedMetric(a: MetricSignature, b: MetricSignature): boolean {
+  const [small, large] = a.size <= b.size ? [a, b] : [b, a];
+  for (const id of small.keys()) if (large.has(id)) return true;
+  return false;
+}
+
 /** Cosine similarity of two embeddings, −1..1; 0 when either is all zeros. Throws when lengths differ. */
 export function computeEmbeddingCosine(a: ArrayLike<number>, b: ArrayLike<number>): number {
   if (a.length !== b.length) throw new Error(`expected embeddings of equal length, got ${a.length} and ${b.length}`);

@@ -8,7 +8,7 @@
  * is the head's own ground, and letting the library overrule it there cost built-in accuracy.
  */
 import type { BlendedVerdict } from './libraryVerdict';
-import { combineSimilarity, computeEmbeddingCosine, computeSignatureCosine, type MetricSignature, type SimilarityScale } from './librarySignature';
+import { combineSimilarity, computeEmbeddingCosine, computeSignatureCosine, hasSharedMetric, type MetricSignature, type SimilarityScale } from './librarySignature';
 import { CLASSES } from './types';
 
 /** One library entry as the competition sees it. */
@@ -29,7 +29,10 @@ export interface CompetingQuery {
 export interface ClassSimilarity {
   readonly label: string;
   readonly exampleCount: number;
-  /** Mean signature cosine over the class's entries; undefined when the query or entries have no signature. */
+  /**
+   * Mean signature cosine over the class's entries that share a metric id with the query;
+   * undefined when none does (other systems, other names: the embedding alone then decides).
+   */
   readonly signatureCosine?: number;
   /** Mean embedding cosine over the class's entries that have a comparable embedding; undefined when none. */
   readonly embeddingCosine?: number;
@@ -40,6 +43,11 @@ export interface CompetitionOptions {
   readonly scale: SimilarityScale;
   /** Combined similarity (sd units) the nearest class must reach to take the verdict. */
   readonly acceptSimilarity: number;
+  /**
+   * Least lead (sd units) of the nearest team label over the nearest library class that bears a
+   * built-in name (the team's own incidents of known types), when the library has any; 0 = none.
+   */
+  readonly acceptMargin: number;
   /** The library may overrule the head only when the head's top calibrated probability is ≤ this. */
   readonly headConfidenceCap: number;
   /** Share of probability mass the library takes when it wins, 0..1. */
@@ -55,6 +63,7 @@ export interface CompetitionOptions {
 export const DEFAULT_COMPETITION_OPTIONS: CompetitionOptions = {
   scale: { signatureWeight: 0.5, signatureMean: 0.1, signatureSd: 0.4, embeddingMean: 0.5, embeddingSd: 0.3 },
   acceptSimilarity: 1,
+  acceptMargin: 0,
   headConfidenceCap: 0.9,
   maxWeight: 0.9,
   temperature: 0.25,
@@ -63,14 +72,15 @@ export const DEFAULT_COMPETITION_OPTIONS: CompetitionOptions = {
 /**
  * Per library label (in order of first appearance), the mean signature cosine and mean embedding
  * cosine of the query to that label's entries. Entries without an embedding are left out of the
- * embedding mean only. Empty library → empty array.
+ * embedding mean only; entries without a signature or without a metric id in common with the
+ * query are left out of the signature mean only. Empty library → empty array.
  */
 export function computeClassSimilarities(query: CompetingQuery, entries: readonly CompetingEntry[]): ClassSimilarity[] {
   const sums = new Map<string, { count: number; sig: number; sigCount: number; emb: number; embCount: number }>();
   for (const entry of entries) {
     const slot = sums.get(entry.label) ?? { count: 0, sig: 0, sigCount: 0, emb: 0, embCount: 0 };
     slot.count += 1;
-    if (query.signature !== undefined && entry.signature !== undefined) { slot.sig += computeSignatureCosine(query.signature, entry.signature); slot.sigCount += 1; }
+    if (query.signature !== undefined && entry.signature !== undefined && hasSharedMetric(query.signature, entry.signature)) { slot.sig += computeSignatureCosine(query.signature, entry.signature); slot.sigCount += 1; }
     if (query.embedding !== undefined && entry.embedding !== undefined) { slot.emb += computeEmbeddingCosine(query.embedding, entry.embedding); slot.embCount += 1; }
     sums.set(entry.label, slot);
   }
@@ -84,8 +94,9 @@ export function computeClassSimilarities(query: CompetingQuery, entries: readonl
 /**
  * Blend the head's calibrated probabilities with the library by competition. The nearest library
  * class c* (highest combined similarity s*, see combineSimilarity; ties keep the first) takes the
- * library weight w = maxWeight when all three hold: c* is not a built-in class, the head's top
- * probability ≤ headConfidenceCap, and s* ≥ acceptSimilarity; otherwise w = 0 and the base
+ * library weight w = maxWeight when all four hold: c* is not a built-in class, the head's top
+ * probability ≤ headConfidenceCap, s* ≥ acceptSimilarity, and s* leads the nearest built-in-named
+ * library class (if any) by ≥ acceptMargin; otherwise w = 0 and the base
  * verdict is returned unchanged. With w > 0: p(c) = (1 − w)·base(c) + w·q(c), q = softmax of the
  * class similarities / temperature (a built-in label adds to its class). `libraryMatch` is set
  * when the winner got more of its probability from the library than from the head. Throws when
@@ -100,8 +111,10 @@ export function competeVerdict(baseProbabilities: Readonly<Record<string, number
   scores.forEach((s, i) => { if (Number.isFinite(s) && (best < 0 || s > scores[best])) best = i; });
   const headTop = Math.max(...base.map(([, p]) => p));
   const winner = best >= 0 ? classes[best] : undefined;
-  const isAccepted = winner !== undefined && !(CLASSES as readonly string[]).includes(winner.label)
-    && headTop <= options.headConfidenceCap && scores[best] >= options.acceptSimilarity;
+  const isBuiltIn = (label: string): boolean => (CLASSES as readonly string[]).includes(label);
+  const nearestBuiltIn = Math.max(Number.NEGATIVE_INFINITY, ...scores.filter((_, i) => isBuiltIn(classes[i].label)));
+  const isAccepted = winner !== undefined && !isBuiltIn(winner.label) && headTop <= options.headConfidenceCap
+    && scores[best] >= options.acceptSimilarity && scores[best] - nearestBuiltIn >= options.acceptMargin;
   const weight = isAccepted ? options.maxWeight : 0;
   const blended = new Map<string, number>(base.map(([name, p]) => [name, (1 - weight) * p]));
   const libraryPart = new Map<string, number>();
@@ -134,5 +147,5 @@ export function competeVerdict(baseProbabilities: Readonly<Record<string, number
 function checkOptions(options: CompetitionOptions): void {
   if (!(options.maxWeight >= 0 && options.maxWeight <= 1)) throw new Error(`expected maxWeight in 0..1, got ${options.maxWeight}`);
   if (!(options.temperature > 0)) throw new Error(`expected temperature > 0, got ${options.temperature}`);
-  if (Number.isNaN(options.acceptSimilarity) || Number.isNaN(options.headConfidenceCap)) throw new Error('expected numeric acceptSimilarity and headConfidenceCap, got NaN');
+  if ([options.acceptSimilarity, options.acceptMargin, options.headConfidenceCap].some(Number.isNaN)) throw new Error('expected numeric acceptSimilarity, acceptMargin and headConfidenceCap, got NaN');
 }
