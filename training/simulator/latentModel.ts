@@ -4,7 +4,7 @@
  * queueing-style couplings, so side effects arise from the model (a memory leak raises GC and
  * burns CPU, a surge raises CPU and then latency) rather than being painted on one metric.
  */
-import type { Random } from './random';
+import { normalFromUniform, studentT2FromUniform, type Random } from './random';
 
 /** Physical parameters of one simulated service; drawn once per system. */
 export interface ServiceParams {
@@ -147,24 +147,33 @@ export function drawBaseTraffic(p: ServiceParams, rng: Random, timesMs: Float64A
 const DRAWS_PER_STEP = 13;
 
 /**
- * Takes one step's random draws. The count and order never depend on the drivers, so a
- * counterfactual without the fault sees exactly the same noise, and the draws can be taken once
- * and used for both.
+ * Takes one step's random draws: 13 uniforms in one call (plus one when the 1 % stray-drops
+ * chance hits), turned into normals etc. exactly as the generator's own methods turn them. The
+ * count and order never depend on the drivers, so a counterfactual without the fault sees exactly
+ * the same noise, and the draws can be taken once and used for both. `u` is scratch (13 values).
  */
-function drawStep(rng: Random, r: Float64Array): void {
-  r[0] = rng.normal(); // steal jitter
-  r[1] = rng.next(); // usable share of capacity
-  r[2] = rng.next(); // iowait spread
-  r[3] = rng.next(); // pool wait jitter, drawn always
-  r[4] = rng.normal(); // error ratio noise
-  r[5] = rng.next(); // time since a restart
-  r[6] = rng.normal(); // load noise
-  r[7] = rng.next(); // throttle spread
-  r[8] = rng.normal(); // retransmit noise
-  r[9] = rng.normal(); // drop noise
-  r[10] = rng.chance(0.01) ? rng.uniform(0, 3) : 0; // stray drops
-  r[11] = rng.studentT2(); // latency tail
-  r[12] = rng.chance(0.02) ? 1 : 0; // stray pending connection
+function drawStep(rng: Random, u: Float64Array, r: Float64Array): void {
+  rng.fillUniform(u, DRAWS_PER_STEP);
+  r[0] = normalFromUniform(u[0] as number); // steal jitter
+  r[1] = u[1] as number; // usable share of capacity
+  r[2] = u[2] as number; // iowait spread
+  r[3] = u[3] as number; // pool wait jitter, drawn always
+  r[4] = normalFromUniform(u[4] as number); // error ratio noise
+  r[5] = u[5] as number; // time since a restart
+  r[6] = normalFromUniform(u[6] as number); // load noise
+  r[7] = u[7] as number; // throttle spread
+  r[8] = normalFromUniform(u[8] as number); // retransmit noise
+  r[9] = normalFromUniform(u[9] as number); // drop noise
+  if ((u[10] as number) < 0.01) {
+    // Stray drops: uniform(0, 3) takes the next draw, which shifts the last two by one.
+    r[10] = 0 + (3 - 0) * (u[11] as number);
+    r[11] = studentT2FromUniform(u[12] as number);
+    r[12] = rng.next() < 0.02 ? 1 : 0;
+  } else {
+    r[10] = 0;
+    r[11] = studentT2FromUniform(u[11] as number); // latency tail
+    r[12] = (u[12] as number) < 0.02 ? 1 : 0; // stray pending connection
+  }
 }
 
 /** Slow noise series shared by every step (drawn once per render). */
@@ -289,8 +298,9 @@ function deriveBoth(p: ServiceParams, d: Drivers, qd: Drivers | undefined, baseT
   let quietUptimeS = uptimeS;
   let quietRestarts = restarts;
   const r = new Float64Array(DRAWS_PER_STEP);
+  const u = new Float64Array(DRAWS_PER_STEP);
   for (let i = 0; i < n; i += 1) {
-    drawStep(rng, r);
+    drawStep(rng, u, r);
     writeStep(p, d, i, noise, r, o);
     // Drawn on every step, so the number of draws does not depend on the drivers: a counterfactual
     // run without the fault (same generator state) then sees exactly the same noise.

@@ -24,6 +24,8 @@ export interface Random {
   studentT2(): number;
   /** An independent generator at the same state: it yields the same sequence as this one from here. */
   clone(): Random;
+  /** Writes the next `count` uniforms into `out[0..count)`: exactly what `count` calls of next() return, in one call. */
+  fillUniform(out: Float64Array, count: number): void;
 }
 
 /** Mixes several integers into one 32-bit seed (splitmix-style avalanche), order-sensitive. */
@@ -91,6 +93,21 @@ function getNormalTable(): Float64Array {
   return normalTable;
 }
 
+/** The normal draw for uniform `u` in [0, 1): what normal() returns when next() gave `u`. */
+export function normalFromUniform(u: number): number {
+  // Table entry k = ⌊u·65,536⌋, read from the lower half (mirrored and negated when k ≥ 32,768).
+  const k = (u * NORMAL_TABLE_SIZE) | 0;
+  const upper = k >>> 15;
+  return ((normalTable ?? getNormalTable())[(k ^ -upper) & (HALF_TABLE_SIZE - 1)] as number) * (1 - 2 * upper);
+}
+
+/** The Student-t(2) draw for uniform `u` in [0, 1): what studentT2() returns when next() gave `u`. */
+export function studentT2FromUniform(next: number): number {
+  // Inverse CDF of t(2): (2u-1) / sqrt(2u(1-u)), u kept away from 0 and 1.
+  const u = 1e-9 + (1 - 2e-9) * next;
+  return (2 * u - 1) / Math.sqrt(2 * u * (1 - u));
+}
+
 /** The normal table entry `k` (0 ≤ k < 65,536): inverseNormalCdf((k + ½) / 65,536). */
 export function readNormalTable(k: number): number {
   const table = getNormalTable();
@@ -130,7 +147,7 @@ class Mulberry32 implements Random {
   }
 
   normal(): number {
-    // Table entry k = ⌊u·65,536⌋, read from the lower half (mirrored and negated when k ≥ 32,768).
+    // As normalFromUniform, with the table at hand (this is the hottest call of the simulator).
     const k = (this.next() * NORMAL_TABLE_SIZE) | 0;
     const upper = k >>> 15;
     return (this.table[(k ^ -upper) & (HALF_TABLE_SIZE - 1)] as number) * (1 - 2 * upper);
@@ -158,9 +175,7 @@ class Mulberry32 implements Random {
   }
 
   studentT2(): number {
-    // Inverse CDF of t(2): (2u-1) / sqrt(2u(1-u)), u kept away from 0 and 1.
-    const u = 1e-9 + (1 - 2e-9) * this.next();
-    return (2 * u - 1) / Math.sqrt(2 * u * (1 - u));
+    return studentT2FromUniform(this.next());
   }
 
   studentT(dof: number): number {
@@ -174,5 +189,18 @@ class Mulberry32 implements Random {
 
   clone(): Random {
     return new Mulberry32(this.state[0] as number);
+  }
+
+  fillUniform(out: Float64Array, count: number): void {
+    // next() unrolled over a local state: no call and no boxed result per draw.
+    let state = this.state[0] as number;
+    for (let k = 0; k < count; k += 1) {
+      state = (state + 0x6d2b79f5) | 0;
+      let t = state;
+      t = Math.imul(t ^ (t >>> 15), t | 1);
+      t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+      out[k] = ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+    }
+    this.state[0] = state;
   }
 }
