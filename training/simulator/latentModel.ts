@@ -115,12 +115,22 @@ export function createObservables(n: number): Observables {
 /** AR(1) noise with stationary standard deviation `sigma` (phi = memory per step), into `out` (length >= n) when given. */
 export function drawAr1(rng: Random, n: number, phi: number, sigma: number, out: Float64Array = new Float64Array(n)): Float64Array {
   const innovation = sigma * Math.sqrt(1 - phi * phi);
-  let x = rng.normal() * sigma;
+  // The n + 1 normals in one call (the start, then one innovation per step), same order as one by one.
+  const z = normalScratch(n + 1);
+  rng.fillNormal(z, 0, n + 1);
+  let x = (z[0] as number) * sigma;
   for (let i = 0; i < n; i += 1) {
-    x = phi * x + innovation * rng.normal();
+    x = phi * x + innovation * (z[i + 1] as number);
     out[i] = x;
   }
   return out;
+}
+
+let normalScratchBuffer = new Float64Array(1024);
+/** A module-level scratch of at least `length` values (the draws are consumed before any other use). */
+function normalScratch(length: number): Float64Array {
+  if (normalScratchBuffer.length < length) normalScratchBuffer = new Float64Array(Math.max(length, 2 * normalScratchBuffer.length));
+  return normalScratchBuffer;
 }
 
 const DAY_MS = 86_400_000;
@@ -153,7 +163,7 @@ const DRAWS_PER_STEP = 13;
  * the same noise, and the draws can be taken once and used for both. `u` is scratch (13 values).
  */
 function drawStep(rng: Random, u: Float64Array, r: Float64Array): void {
-  rng.fillUniform(u, DRAWS_PER_STEP);
+  rng.fillUniform(u, 0, DRAWS_PER_STEP);
   r[0] = normalFromUniform(u[0] as number); // steal jitter
   r[1] = u[1] as number; // usable share of capacity
   r[2] = u[2] as number; // iowait spread

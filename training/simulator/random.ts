@@ -24,8 +24,10 @@ export interface Random {
   studentT2(): number;
   /** An independent generator at the same state: it yields the same sequence as this one from here. */
   clone(): Random;
-  /** Writes the next `count` uniforms into `out[0..count)`: exactly what `count` calls of next() return, in one call. */
-  fillUniform(out: Float64Array, count: number): void;
+  /** Writes uniforms into `out[start..end)`: exactly what end − start calls of next() return, in one call. */
+  fillUniform(out: Float64Array, start: number, end: number): void;
+  /** Writes normals into `out[start..end)`: exactly what end − start calls of normal() return, in one call. */
+  fillNormal(out: Float64Array, start: number, end: number): void;
 }
 
 /** Mixes several integers into one 32-bit seed (splitmix-style avalanche), order-sensitive. */
@@ -191,15 +193,31 @@ class Mulberry32 implements Random {
     return new Mulberry32(this.state[0] as number);
   }
 
-  fillUniform(out: Float64Array, count: number): void {
+  fillUniform(out: Float64Array, start: number, end: number): void {
     // next() unrolled over a local state: no call and no boxed result per draw.
     let state = this.state[0] as number;
-    for (let k = 0; k < count; k += 1) {
+    for (let k = start; k < end; k += 1) {
       state = (state + 0x6d2b79f5) | 0;
       let t = state;
       t = Math.imul(t ^ (t >>> 15), t | 1);
       t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
       out[k] = ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+    }
+    this.state[0] = state;
+  }
+
+  fillNormal(out: Float64Array, start: number, end: number): void {
+    // normal() unrolled the same way.
+    const table = this.table;
+    let state = this.state[0] as number;
+    for (let k = start; k < end; k += 1) {
+      state = (state + 0x6d2b79f5) | 0;
+      let t = state;
+      t = Math.imul(t ^ (t >>> 15), t | 1);
+      t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+      const index = ((((t ^ (t >>> 14)) >>> 0) / 4294967296) * NORMAL_TABLE_SIZE) | 0;
+      const upper = index >>> 15;
+      out[k] = (table[(index ^ -upper) & (HALF_TABLE_SIZE - 1)] as number) * (1 - 2 * upper);
     }
     this.state[0] = state;
   }

@@ -60,7 +60,7 @@ function quantise(values: Float64Array, quantum: number): void {
 }
 
 /**
- * Renders series `s` into `out` (length n). `walk` is scratch for irrelevant metrics; `tailFactor`
+ * Renders series `s` into `out` (length n). `walk` is scratch (length n); `tailFactor`
  * holds exp(s.tailWeight · log tail) per step (shared by every copy with that weight).
  */
 function renderValues(s: SeriesSpec, o: Observables, rng: Random, stepMs: number, burstProbability: number, shared: Float64Array, tailFactor: Float64Array | undefined, out: Float64Array, walk: Float64Array): void {
@@ -88,20 +88,28 @@ function renderValues(s: SeriesSpec, o: Observables, rng: Random, stepMs: number
   const sharedWeight = s.tailWeight > 0 ? 0.95 : 0.8;
   const ownWeight = Math.sqrt(1 - sharedWeight * sharedWeight);
   let burstAt = ownBurstProbability > 0 ? Math.floor(Math.log(1 - rng.next()) / logNoBurst) : n;
-  for (let i = 0; i < n; i += 1) {
-    let v = (base[i] as number) * factor;
-    if (tailFactor) v *= tailFactor[i] as number;
-    // 1 + σz is lognormal noise to first order for σ <= 0.16, at a fraction of the cost. Copies
-    // of one role share most of it (weights with squares summing to 1), so percentiles stay
-    // ordered and pod/node copies move together, as real family members do.
-    v *= 1 + sigma * (sharedWeight * (shared[i] as number) + ownWeight * rng.normal());
-    if (i === burstAt) {
-      v *= 1 + 0.4 * Math.abs(rng.studentT2());
-      burstAt = i + 1 + Math.floor(Math.log(1 - rng.next()) / logNoBurst);
+  // Own noise drawn in blocks up to and including the next burst step; the burst's own draws
+  // follow it, so the generator sees the same sequence as one draw per step.
+  const own = walk;
+  let i = 0;
+  while (i < n) {
+    const end = Math.min(n, burstAt + 1);
+    rng.fillNormal(own, i, end);
+    for (; i < end; i += 1) {
+      let v = (base[i] as number) * factor;
+      if (tailFactor) v *= tailFactor[i] as number;
+      // 1 + σz is lognormal noise to first order for σ <= 0.16, at a fraction of the cost. Copies
+      // of one role share most of it (weights with squares summing to 1), so percentiles stay
+      // ordered and pod/node copies move together, as real family members do.
+      v *= 1 + sigma * (sharedWeight * (shared[i] as number) + ownWeight * (own[i] as number));
+      if (i === burstAt) {
+        v *= 1 + 0.4 * Math.abs(rng.studentT2());
+        burstAt = i + 1 + Math.floor(Math.log(1 - rng.next()) / logNoBurst);
+      }
+      // Ratios keep their natural ceiling (100 % busy, 100 % success).
+      if (isRatio && v > ceiling) v = ceiling;
+      out[i] = v > 0 ? v : 0;
     }
-    // Ratios keep their natural ceiling (100 % busy, 100 % success).
-    if (isRatio && v > ceiling) v = ceiling;
-    out[i] = v > 0 ? v : 0;
   }
 }
 
@@ -177,7 +185,7 @@ export function renderSystem(spec: SystemSpec, request: RenderRequest, rng: Rand
     let shared = sharedNoise.get(s.role.key);
     if (!shared) {
       shared = carve();
-      for (let i = 0; i < n; i += 1) shared[i] = rng.normal();
+      rng.fillNormal(shared, 0, n);
       sharedNoise.set(s.role.key, shared);
     }
     const rendered = carve();
