@@ -62,9 +62,33 @@ export const OBSERVABLE_KEYS = [
 export type ObservableKey = (typeof OBSERVABLE_KEYS)[number];
 export type Observables = Record<ObservableKey, Float64Array>;
 
-/** Fresh drivers for `n` steps: scales at 1, extras at 0. */
-export function createDrivers(n: number): Drivers {
-  const d = viewDrivers(new Float64Array(DRIVER_KEYS.length * n), n);
+/**
+ * Reusable buffers for arrays that live only during one render (the simulator is synchronous and
+ * never re-entered): fresh arrays of this size each cost an off-heap allocation, zeroing, and
+ * collector work, and land at new addresses that evict the normal table from the cache.
+ * Returns a buffer of at least `length` values whose contents are unspecified; `slot` names the
+ * use (two uses alive at once must take different slots).
+ */
+export function borrowScratch(slot: ScratchSlot, length: number): Float64Array {
+  let buffer = scratchBuffers[slot];
+  if (!buffer || buffer.length < length) {
+    buffer = new Float64Array(Math.max(length, 2 * (buffer?.length ?? 0), 1024));
+    scratchBuffers[slot] = buffer;
+  }
+  return buffer;
+}
+/** Scratch users: each a distinct buffer. */
+export const ScratchSlot = { Drivers: 0, QuietDrivers: 1, Traffic: 2, Noise: 3, Faulted: 4, Counterfactual: 5, Series: 6, Times: 7 } as const;
+export type ScratchSlot = (typeof ScratchSlot)[keyof typeof ScratchSlot];
+const scratchBuffers: Array<Float64Array | undefined> = [];
+let differsScratch = new Uint8Array(1024);
+
+/** Fresh drivers for `n` steps: scales at 1, extras at 0 (in the first 15·n values of `buffer` when given). */
+export function createDrivers(n: number, buffer?: Float64Array): Drivers {
+  const size = DRIVER_KEYS.length * n;
+  const store = buffer ? buffer.subarray(0, size) : new Float64Array(size);
+  if (buffer) store.fill(0);
+  const d = viewDrivers(store, n);
   d.trafficScale.fill(1);
   d.cpuScale.fill(1);
   d.latencyScale.fill(1);
@@ -87,21 +111,23 @@ function viewDrivers(buffer: Float64Array, n: number): Drivers {
   };
 }
 
-/** Copies of every driver series. */
-export function copyDrivers(d: Drivers): Drivers {
+/** Copies of every driver series (in the first 15·n values of `buffer` when given). */
+export function copyDrivers(d: Drivers, buffer?: Float64Array): Drivers {
   const n = d.trafficScale.length;
-  const out = viewDrivers(new Float64Array(DRIVER_KEYS.length * n), n);
+  const size = DRIVER_KEYS.length * n;
+  const out = viewDrivers(buffer ? buffer.subarray(0, size) : new Float64Array(size), n);
   for (const key of DRIVER_KEYS) out[key].set(d[key]);
   return out;
 }
 
 /**
- * Zeroed observables for `n` steps, views of one buffer (one allocation instead of 31). An object
- * literal, not keys added in a loop: V8 turns an object grown by more than a dozen computed-key
- * stores into a hash table, and every `o.cpu[i]` in the render loops then becomes a lookup.
+ * Zeroed observables for `n` steps, views of one buffer (one allocation instead of 31); with
+ * `store`, views of its first 31·n values, not zeroed. An object literal, not keys added in a
+ * loop: V8 turns an object grown by more than a dozen computed-key stores into a hash table, and
+ * every `o.cpu[i]` in the render loops then becomes a lookup.
  */
-export function createObservables(n: number): Observables {
-  const buffer = new Float64Array(OBSERVABLE_KEYS.length * n);
+export function createObservables(n: number, store?: Float64Array): Observables {
+  const buffer = store ?? new Float64Array(OBSERVABLE_KEYS.length * n);
   let k = 0;
   const z = (): Float64Array => buffer.subarray(n * k, n * ++k);
   return {
@@ -136,15 +162,18 @@ function normalScratch(length: number): Float64Array {
 const DAY_MS = 86_400_000;
 const clamp = (x: number, lo: number, hi: number): number => (x < lo ? lo : x > hi ? hi : x);
 
-/** Daily traffic cycle times slow AR noise, before any fault scaling; requests per second. */
-export function drawBaseTraffic(p: ServiceParams, rng: Random, timesMs: Float64Array, stepMs: number): Float64Array {
+/**
+ * Daily traffic cycle times slow AR noise, before any fault scaling; requests per second. With
+ * `intoScratch` the result is a view of a reused buffer, valid until the next render.
+ */
+export function drawBaseTraffic(p: ServiceParams, rng: Random, timesMs: Float64Array, stepMs: number, intoScratch = false): Float64Array {
   const n = timesMs.length;
   // Noise memory of about 10 minutes whatever the step, so 1 s and 5 min grids both look real.
   const phi = Math.exp(-stepMs / 600_000);
-  const scratch = new Float64Array(2 * n);
+  const scratch = borrowScratch(ScratchSlot.Traffic, 3 * n);
   const ar = drawAr1(rng, n, Math.min(phi, 0.999), p.trafficNoiseSigma, scratch.subarray(0, n));
-  const slow = drawAr1(rng, n, Math.min(0.9995, Math.exp(-stepMs / 14_400_000)), p.slowDriftSigma, scratch.subarray(n));
-  const out = new Float64Array(n);
+  const slow = drawAr1(rng, n, Math.min(0.9995, Math.exp(-stepMs / 14_400_000)), p.slowDriftSigma, scratch.subarray(n, 2 * n));
+  const out = intoScratch ? scratch.subarray(2 * n, 3 * n) : new Float64Array(n);
   for (let i = 0; i < n; i += 1) {
     const angle = (2 * Math.PI * (timesMs[i] as number)) / DAY_MS + p.dailyPhaseRad;
     const cycle = 1 + p.dailyAmplitude * Math.sin(angle) + 0.3 * p.dailyAmplitude * Math.sin(2 * angle + 1);
@@ -258,7 +287,9 @@ const isSameBits = (a: number, b: number): boolean => a === b && (a !== 0 || 1 /
 
 /** 1 at every step where any driver of `a` and `b` differs, else 0. */
 function markDifferingSteps(a: Drivers, b: Drivers, n: number): Uint8Array {
-  const differs = new Uint8Array(n);
+  if (differsScratch.length < n) differsScratch = new Uint8Array(2 * n);
+  const differs = differsScratch.subarray(0, n);
+  differs.fill(0);
   for (const key of DRIVER_KEYS) {
     const x = a[key];
     const y = b[key];
@@ -273,8 +304,8 @@ function markDifferingSteps(a: Drivers, b: Drivers, n: number): Uint8Array {
  * latency grows with CPU and disk utilisation as 1/(1-ρ) beyond a knee; the pool fills with
  * traffic × hold time; errors rise from timeouts when latency explodes.
  */
-export function deriveObservables(p: ServiceParams, d: Drivers, baseTraffic: Float64Array, rng: Random, stepMs: number): Observables {
-  return deriveBoth(p, d, undefined, baseTraffic, rng, stepMs).faulted;
+export function deriveObservables(p: ServiceParams, d: Drivers, baseTraffic: Float64Array, rng: Random, stepMs: number, intoScratch = false): Observables {
+  return deriveBoth(p, d, undefined, baseTraffic, rng, stepMs, intoScratch).faulted;
 }
 
 /**
@@ -284,26 +315,28 @@ export function deriveObservables(p: ServiceParams, d: Drivers, baseTraffic: Flo
  * steps where the drivers differ (elsewhere every observable but uptime and restarts is the same
  * function of the same inputs) and copied from the faulted run at the others.
  */
-export function deriveObservablesWithCounterfactual(p: ServiceParams, d: Drivers, quietDrivers: Drivers, baseTraffic: Float64Array, rng: Random, stepMs: number): { faulted: Observables; counterfactual: Observables } {
-  const both = deriveBoth(p, d, quietDrivers, baseTraffic, rng, stepMs);
+export function deriveObservablesWithCounterfactual(p: ServiceParams, d: Drivers, quietDrivers: Drivers, baseTraffic: Float64Array, rng: Random, stepMs: number, intoScratch = false): { faulted: Observables; counterfactual: Observables } {
+  const both = deriveBoth(p, d, quietDrivers, baseTraffic, rng, stepMs, intoScratch);
   return { faulted: both.faulted, counterfactual: both.counterfactual as Observables };
 }
 
-function deriveBoth(p: ServiceParams, d: Drivers, qd: Drivers | undefined, baseTraffic: Float64Array, rng: Random, stepMs: number): { faulted: Observables; counterfactual?: Observables } {
+/** `intoScratch`: the observables are views of reused buffers, valid until the next render. */
+function deriveBoth(p: ServiceParams, d: Drivers, qd: Drivers | undefined, baseTraffic: Float64Array, rng: Random, stepMs: number, intoScratch: boolean): { faulted: Observables; counterfactual?: Observables } {
   const n = baseTraffic.length;
-  const o = createObservables(n);
+  const observablesSize = OBSERVABLE_KEYS.length * n;
+  const o = createObservables(n, intoScratch ? borrowScratch(ScratchSlot.Faulted, observablesSize) : undefined);
   const phi = Math.min(0.995, Math.exp(-stepMs / 300_000));
-  const scratch = new Float64Array(4 * n);
+  const scratch = borrowScratch(ScratchSlot.Noise, 4 * n);
   const cpuNoise = drawAr1(rng, n, phi, p.cpuNoiseSigma, scratch.subarray(0, n));
   const memNoise = drawAr1(rng, n, Math.min(0.999, Math.exp(-stepMs / 1_800_000)), p.memNoiseSigma, scratch.subarray(n, 2 * n));
   const diskNoise = drawAr1(rng, n, phi, 0.15, scratch.subarray(2 * n, 3 * n));
   // Slow wander of per-request cost, independent of traffic: long baselines are not flat.
-  const slow = drawAr1(rng, n, Math.min(0.9995, Math.exp(-stepMs / 14_400_000)), p.slowDriftSigma, scratch.subarray(3 * n));
+  const slow = drawAr1(rng, n, Math.min(0.9995, Math.exp(-stepMs / 14_400_000)), p.slowDriftSigma, scratch.subarray(3 * n, 4 * n));
   const noise: StepNoise = { baseTraffic, cpu: cpuNoise, mem: memNoise, disk: diskNoise, slow };
   const stepS = stepMs / 1000;
   let uptimeS = rng.uniform(3600, 40 * 86400);
   let restarts = rng.int(0, 6);
-  const q = qd ? createObservables(n) : undefined;
+  const q = qd ? createObservables(n, intoScratch ? borrowScratch(ScratchSlot.Counterfactual, observablesSize) : undefined) : undefined;
   const differs = qd ? markDifferingSteps(d, qd, n) : undefined;
   let quietUptimeS = uptimeS;
   let quietRestarts = restarts;

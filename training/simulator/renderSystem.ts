@@ -5,7 +5,7 @@
  */
 import { applyBenignEvent, drawBenignEvents, type BenignKind } from './benignEvents';
 import { applyFault, type FaultPlan } from './faults';
-import { copyDrivers, createDrivers, deriveObservables, deriveObservablesWithCounterfactual, drawAr1, drawBaseTraffic, type Observables } from './latentModel';
+import { borrowScratch, copyDrivers, createDrivers, deriveObservables, deriveObservablesWithCounterfactual, drawAr1, drawBaseTraffic, DRIVER_KEYS, ScratchSlot, type Observables } from './latentModel';
 import type { Random } from './random';
 import type { SeriesSpec, SystemSpec } from './systemSpec';
 import type { SimSeries, SimSystem } from './types';
@@ -20,6 +20,12 @@ export interface RenderRequest {
   readonly benignEvents?: ReadonlyArray<{ readonly kind: BenignKind; readonly at: number }>;
   /** Also derive the observables without the faults (same noise), to measure what a fault moved. */
   readonly keepCounterfactual?: boolean;
+  /**
+   * Render into buffers reused by the next render: series values, times and observables of the
+   * result are then valid only until renderSystem is called again. For callers that copy what
+   * they need at once (sampleExamples); the values are the same either way.
+   */
+  readonly reuseBuffers?: boolean;
 }
 
 /** Observables with and without the faults, drawn from the same noise (see measureFaultEvidence). */
@@ -156,22 +162,25 @@ function punchGaps(values: Float64Array, probability: number, rng: Random): void
 /** Renders `spec` on a grid of `lengthSteps` steps starting at `startMs` with the given faults. */
 export function renderSystem(spec: SystemSpec, request: RenderRequest, rng: Random): RenderedSystem {
   const n = request.lengthSteps;
-  const timesMs = new Float64Array(n);
+  const reuse = request.reuseBuffers === true;
+  const timesMs = reuse ? borrowScratch(ScratchSlot.Times, n).subarray(0, n) : new Float64Array(n);
   for (let i = 0; i < n; i += 1) timesMs[i] = request.startMs + i * spec.stepMs;
-  const drivers = createDrivers(n);
+  // Drivers never leave this function, so their buffers are always reused.
+  const drivers = createDrivers(n, borrowScratch(ScratchSlot.Drivers, DRIVER_KEYS.length * n));
   drawBenignEvents(drivers, rng, request.benignPerStep);
   for (const event of request.benignEvents ?? []) applyBenignEvent(drivers, event.kind, event.at, rng);
-  const quietDrivers = request.keepCounterfactual ? copyDrivers(drivers) : undefined;
+  const quietDrivers = request.keepCounterfactual ? copyDrivers(drivers, borrowScratch(ScratchSlot.QuietDrivers, DRIVER_KEYS.length * n)) : undefined;
   for (const plan of request.faults) applyFault(drivers, plan, spec.params, rng);
-  const baseTraffic = drawBaseTraffic(spec.params, rng, timesMs, spec.stepMs);
+  const baseTraffic = drawBaseTraffic(spec.params, rng, timesMs, spec.stepMs, true);
   // The counterfactual sees the same noise as the faulted run, so only the fault differs between the two.
-  const both = quietDrivers ? deriveObservablesWithCounterfactual(spec.params, drivers, quietDrivers, baseTraffic, rng, spec.stepMs) : undefined;
-  const o = both ? both.faulted : deriveObservables(spec.params, drivers, baseTraffic, rng, spec.stepMs);
+  const both = quietDrivers ? deriveObservablesWithCounterfactual(spec.params, drivers, quietDrivers, baseTraffic, rng, spec.stepMs, reuse) : undefined;
+  const o = both ? both.faulted : deriveObservables(spec.params, drivers, baseTraffic, rng, spec.stepMs, reuse);
   const quiet = both?.counterfactual;
   // Every per-step array of the series comes from one allocation: each typed array of this size
   // otherwise gets its own off-heap store, and making and freeing those cost more than filling them.
   const roleCount = new Set(spec.series.map((s) => s.role.key)).size;
-  const arena = new Float64Array(n * (spec.series.length + roleCount + 2));
+  const arenaSize = n * (spec.series.length + roleCount + 2);
+  const arena = reuse ? borrowScratch(ScratchSlot.Series, arenaSize) : new Float64Array(arenaSize);
   let arenaUsed = 0;
   const carve = (): Float64Array => arena.subarray(arenaUsed, (arenaUsed += n));
   const walk = carve();

@@ -202,7 +202,7 @@ function drawExample(spec: SystemSpec, label: SimClass, rng: Random, windowRange
   const kept = spec.series.filter((_, k) => keep[k]);
   const system = renderSystem({ ...spec, series: kept }, {
     lengthSteps: layout.lengthSteps, startMs, faults: layout.fault ? [layout.fault] : [],
-    benignPerStep: rng.uniform(0, 1 / 100), benignEvents, keepCounterfactual: isChecked,
+    benignPerStep: rng.uniform(0, 1 / 100), benignEvents, keepCounterfactual: isChecked, reuseBuffers: true,
   }, rng);
   const metrics: MetricWindow[] = [];
   const truth: MetricTruth[] = [];
