@@ -27,7 +27,7 @@ import { loadClassifierModel } from '../extension/runtime/onnxRunner';
 import { readFileSync } from 'node:fs';
 import { computeAccuracy, computeMacroF1, computeMeanSd, drawSupport, type EmbeddedExample } from './fewShotScoring';
 import { computeMetricSignature } from '../extension/core/model/librarySignature';
-import { competeVerdict, computeClassSimilarities, DEFAULT_COMPETITION_OPTIONS, type ClassSimilarity, type CompetitionOptions } from '../extension/core/model/librarySignatureVerdict';
+import { competeVerdict, computeClassSimilarities, DEFAULT_COMPETITION_OPTIONS, isLibraryWinAccepted, rankLibraryClasses, type ClassAggregate, type ClassSimilarity, type CompetitionOptions } from '../extension/core/model/librarySignatureVerdict';
 import { join } from 'node:path';
 import { buildFewShotSplits, buildSplits, buildSystemSpec, drawSystemSeeds, HELD_OUT_CLASSES, mixSeeds, sampleExamples, type SimClass, type TrainingExample } from './simulator';
 
@@ -302,32 +302,59 @@ function scoreCompetition(k: number, groups: readonly EvaluationGroup[], sims: r
 }
 
 /** The z-scaling of the two similarities: their mean and sd over query-to-class similarities. */
-function estimateSimilarityScale(sims: readonly GroupSimilarities[][], signatureWeight: number): CompetitionOptions['scale'] {
+function estimateSimilarityScale(sims: readonly GroupSimilarities[][], signatureWeight: number, aggregate: ClassAggregate): CompetitionOptions['scale'] {
   const all = sims.flatMap((e) => e.flatMap((g) => [...g.heldOut, ...g.builtIn].flat()));
-  const [signatureMean, signatureSd] = computeMeanSd(all.map((c) => c.signatureCosine ?? Number.NaN));
-  const [embeddingMean, embeddingSd] = computeMeanSd(all.map((c) => c.embeddingCosine ?? Number.NaN));
+  const isMax = aggregate === 'max';
+  const [signatureMean, signatureSd] = computeMeanSd(all.map((c) => (isMax ? c.maxSignatureCosine : c.signatureCosine) ?? Number.NaN));
+  const [embeddingMean, embeddingSd] = computeMeanSd(all.map((c) => (isMax ? c.maxEmbeddingCosine : c.embeddingCosine) ?? Number.NaN));
   const round = (x: number): number => Number(x.toPrecision(3));
   return { signatureWeight, signatureMean: round(signatureMean), signatureSd: round(Math.max(signatureSd, 1e-6)), embeddingMean: round(embeddingMean), embeddingSd: round(Math.max(embeddingSd, 1e-6)) };
 }
 
+/** One query as the competition's gate sees it (for fast calibration over many settings). */
+interface GateCase {
+  readonly truth: string;
+  readonly head: string;
+  readonly headTop: number;
+  readonly nearestLabel: string;
+  readonly score: number;
+  readonly lead: number;
+}
+
+function toGateCase(q: EmbeddedExample, classes: readonly ClassSimilarity[], options: CompetitionOptions): GateCase {
+  const { scores, nearestIndex, leadOverBuiltIn } = rankLibraryClasses(classes, options);
+  const [head, headTop] = Object.entries(q.probabilities).reduce((best, cur) => (cur[1] > best[1] ? cur : best));
+  return { truth: q.label, head, headTop, nearestLabel: nearestIndex >= 0 ? classes[nearestIndex].label : '', score: nearestIndex >= 0 ? scores[nearestIndex] : Number.NEGATIVE_INFINITY, lead: leadOverBuiltIn };
+}
+
 /**
- * Pick the competition rule's acceptance threshold and head-confidence cap (and, unless fixed,
- * the signature weight) on calibration groups at k = 3: best held-out accuracy whose mean built-in
- * macro-F1 drop stays within the budget. Returns undefined when no setting keeps the budget.
+ * Pick the competition rule's acceptance threshold, margin and head-confidence cap (and the
+ * signature weight and class aggregate among those given) on calibration groups at k = 3: best
+ * held-out accuracy whose mean built-in macro-F1 drop stays within the budget. The search runs the
+ * product's gate (rankLibraryClasses + isLibraryWinAccepted) and takes the gated label as the
+ * verdict; the reported rows then run the full competeVerdict. Undefined when no setting keeps the budget.
  */
-function calibrateCompetition(groups: readonly EvaluationGroup[], heldOutClasses: readonly string[], weights: readonly number[], f1BudgetPoints: number): { options: CompetitionOptions; result: KResult } | undefined {
+function calibrateCompetition(groups: readonly EvaluationGroup[], heldOutClasses: readonly string[], weights: readonly number[], f1BudgetPoints: number, aggregates: readonly ClassAggregate[] = ['mean']): { options: CompetitionOptions; accuracy: number } | undefined {
   const sims = computeEpisodeSimilarities(groups, heldOutClasses, 3, 6);
-  let best: { options: CompetitionOptions; result: KResult } | undefined;
-  for (const signatureWeight of weights) {
-    const scale = estimateSimilarityScale(sims, signatureWeight);
+  const builtInTruth = groups.flatMap((g) => g.builtIn.map((e) => e.label));
+  const f1Base = computeMacroF1(builtInTruth, groups.flatMap((g) => predictBase(g.builtIn)), CLASSES);
+  const margins = groups.some((g) => g.builtInSupport !== undefined) ? [0, 0.25, 0.5, 1] : [0];
+  let best: { options: CompetitionOptions; accuracy: number } | undefined;
+  for (const classAggregate of aggregates) for (const signatureWeight of weights) {
+    const scale = estimateSimilarityScale(sims, signatureWeight, classAggregate);
+    const ranked: CompetitionOptions = { ...DEFAULT_COMPETITION_OPTIONS, scale, classAggregate };
+    const episodes = sims.map((episode) => ({
+      heldOut: groups.flatMap((g, gi) => g.heldOut.map((q, i) => toGateCase(q, episode[gi].heldOut[i], ranked))),
+      builtIn: groups.flatMap((g, gi) => g.builtIn.map((q, i) => toGateCase(q, episode[gi].builtIn[i], ranked))),
+    }));
     for (const acceptSimilarity of [-0.5, 0, 0.25, 0.5, 0.75, 1, 1.25, 1.5, 1.75, 2, 2.5, 3]) {
       for (const headConfidenceCap of [0.5, 0.6, 0.7, 0.8, 0.9, 0.95, 1]) {
-        // A margin over built-in-named library classes only means something when the library holds them.
-        for (const acceptMargin of groups.some((g) => g.builtInSupport !== undefined) ? [0, 0.25, 0.5, 1] : [0]) {
-          const options: CompetitionOptions = { ...DEFAULT_COMPETITION_OPTIONS, scale, acceptSimilarity, acceptMargin, headConfidenceCap };
-          const result = scoreCompetition(3, groups, sims, options);
-          const isWithinBudget = (result.f1Base - result.f1WithLibraryMean) * 100 <= f1BudgetPoints;
-          if (isWithinBudget && (best === undefined || result.accuracyMean > best.result.accuracyMean)) best = { options, result };
+        for (const acceptMargin of margins) {
+          const options: CompetitionOptions = { ...ranked, acceptSimilarity, acceptMargin, headConfidenceCap };
+          const decide = (c: GateCase): string => (isLibraryWinAccepted(c.nearestLabel, c.score, c.lead, c.headTop, options) ? c.nearestLabel : c.head);
+          const accuracy = mean(episodes.map((e) => computeAccuracy(e.heldOut.map((c) => c.truth), e.heldOut.map(decide))));
+          const f1 = mean(episodes.map((e) => computeMacroF1(builtInTruth, e.builtIn.map(decide), CLASSES)));
+          if ((f1Base - f1) * 100 <= f1BudgetPoints && (best === undefined || accuracy > best.accuracy)) best = { options, accuracy };
         }
       }
     }
@@ -336,7 +363,7 @@ function calibrateCompetition(groups: readonly EvaluationGroup[], heldOutClasses
 }
 
 const describeCompetition = (o: CompetitionOptions): string =>
-  `signatureWeight ${o.scale.signatureWeight}, scale sig ${o.scale.signatureMean}±${o.scale.signatureSd} emb ${o.scale.embeddingMean}±${o.scale.embeddingSd}, acceptSimilarity ${o.acceptSimilarity}, acceptMargin ${o.acceptMargin}, headConfidenceCap ${o.headConfidenceCap}, maxWeight ${o.maxWeight}, temperature ${o.temperature}`;
+  `${o.classAggregate} of each class, signatureWeight ${o.scale.signatureWeight}, scale sig ${o.scale.signatureMean}±${o.scale.signatureSd} emb ${o.scale.embeddingMean}±${o.scale.embeddingSd}, acceptSimilarity ${o.acceptSimilarity}, acceptMargin ${o.acceptMargin}, headConfidenceCap ${o.headConfidenceCap}, maxWeight ${o.maxWeight}, temperature ${o.temperature}`;
 
 const formatRow = (rule: string, r: KResult): string =>
   `| ${rule} | ${r.k} | ${format(r.accuracyMean)} ± ${format(r.accuracySd)} | ${format(r.accuracyPrototypeOnly)} | ${format(r.f1Base)} → ${format(r.f1WithLibraryMean)} | ${(100 * (r.f1Base - r.f1WithLibraryMean)).toFixed(2)} | ${(100 * r.f1DropWorst).toFixed(2)} |\n`;
@@ -351,6 +378,7 @@ function writeTable(title: string, calibration: readonly EvaluationGroup[], repo
   const prototype = calibrateBlend(calibration, classes, 'l2', args.budget).options;
   const rules: CalibratedRules = new Map([
     ['compete, combined', calibrateCompetition(calibration, classes, [0.25, 0.5, 0.75], args.budget)?.options],
+    ['compete, combined, nearest entry', calibrateCompetition(calibration, classes, [0.25, 0.5, 0.75], args.budget, ['max'])?.options],
     ['compete, signature only', calibrateCompetition(calibration, classes, [1], args.budget)?.options],
     ['compete, embedding only', calibrateCompetition(calibration, classes, [0], args.budget)?.options],
   ]);

@@ -36,11 +36,19 @@ export interface ClassSimilarity {
   readonly signatureCosine?: number;
   /** Mean embedding cosine over the class's entries that have a comparable embedding; undefined when none. */
   readonly embeddingCosine?: number;
+  /** Largest signature cosine over the same entries (the nearest single incident). */
+  readonly maxSignatureCosine?: number;
+  /** Largest embedding cosine over the same entries. */
+  readonly maxEmbeddingCosine?: number;
 }
+
+/** How a class's entries make one similarity: their mean (a prototype) or the nearest entry's. */
+export type ClassAggregate = 'mean' | 'max';
 
 /** Rule settings (see DEFAULT_COMPETITION_OPTIONS for how they were chosen). */
 export interface CompetitionOptions {
   readonly scale: SimilarityScale;
+  readonly classAggregate: ClassAggregate;
   /** Combined similarity (sd units) the nearest class must reach to take the verdict. */
   readonly acceptSimilarity: number;
   /**
@@ -62,6 +70,7 @@ export interface CompetitionOptions {
  */
 export const DEFAULT_COMPETITION_OPTIONS: CompetitionOptions = {
   scale: { signatureWeight: 0.5, signatureMean: 0.1, signatureSd: 0.4, embeddingMean: 0.5, embeddingSd: 0.3 },
+  classAggregate: 'mean',
   acceptSimilarity: 1,
   acceptMargin: 0,
   headConfidenceCap: 0.9,
@@ -70,30 +79,37 @@ export const DEFAULT_COMPETITION_OPTIONS: CompetitionOptions = {
 };
 
 /**
- * Per library label (in order of first appearance), the mean signature cosine and mean embedding
- * cosine of the query to that label's entries. Entries without an embedding are left out of the
+ * Per library label (in order of first appearance), the mean and largest signature cosine and
+ * embedding cosine of the query to that label's entries. Entries without an embedding are left out of the
  * embedding mean only; entries without a signature or without a metric id in common with the
  * query are left out of the signature mean only. Empty library → empty array.
  */
 export function computeClassSimilarities(query: CompetingQuery, entries: readonly CompetingEntry[]): ClassSimilarity[] {
-  const sums = new Map<string, { count: number; sig: number; sigCount: number; emb: number; embCount: number }>();
+  const sums = new Map<string, { count: number; sig: number; sigMax: number; sigCount: number; emb: number; embMax: number; embCount: number }>();
   for (const entry of entries) {
-    const slot = sums.get(entry.label) ?? { count: 0, sig: 0, sigCount: 0, emb: 0, embCount: 0 };
+    const slot = sums.get(entry.label) ?? { count: 0, sig: 0, sigMax: -Infinity, sigCount: 0, emb: 0, embMax: -Infinity, embCount: 0 };
     slot.count += 1;
-    if (query.signature !== undefined && entry.signature !== undefined && hasSharedMetric(query.signature, entry.signature)) { slot.sig += computeSignatureCosine(query.signature, entry.signature); slot.sigCount += 1; }
-    if (query.embedding !== undefined && entry.embedding !== undefined) { slot.emb += computeEmbeddingCosine(query.embedding, entry.embedding); slot.embCount += 1; }
+    if (query.signature !== undefined && entry.signature !== undefined && hasSharedMetric(query.signature, entry.signature)) {
+      const c = computeSignatureCosine(query.signature, entry.signature);
+      slot.sig += c; slot.sigMax = Math.max(slot.sigMax, c); slot.sigCount += 1;
+    }
+    if (query.embedding !== undefined && entry.embedding !== undefined) {
+      const c = computeEmbeddingCosine(query.embedding, entry.embedding);
+      slot.emb += c; slot.embMax = Math.max(slot.embMax, c); slot.embCount += 1;
+    }
     sums.set(entry.label, slot);
   }
   return [...sums].map(([label, s]) => ({
     label, exampleCount: s.count,
-    ...(s.sigCount > 0 ? { signatureCosine: s.sig / s.sigCount } : {}),
-    ...(s.embCount > 0 ? { embeddingCosine: s.emb / s.embCount } : {}),
+    ...(s.sigCount > 0 ? { signatureCosine: s.sig / s.sigCount, maxSignatureCosine: s.sigMax } : {}),
+    ...(s.embCount > 0 ? { embeddingCosine: s.emb / s.embCount, maxEmbeddingCosine: s.embMax } : {}),
   }));
 }
 
 /**
  * Blend the head's calibrated probabilities with the library by competition. The nearest library
- * class c* (highest combined similarity s*, see combineSimilarity; ties keep the first) takes the
+ * class c* (highest combined similarity s*, see combineSimilarity, of the class's mean or nearest-entry
+ * cosines as `classAggregate` says; ties keep the first) takes the
  * library weight w = maxWeight when all four hold: c* is not a built-in class, the head's top
  * probability ≤ headConfidenceCap, s* ≥ acceptSimilarity, and s* leads the nearest built-in-named
  * library class (if any) by ≥ acceptMargin; otherwise w = 0 and the base
@@ -106,15 +122,10 @@ export function competeVerdict(baseProbabilities: Readonly<Record<string, number
   checkOptions(options);
   const base = Object.entries(baseProbabilities);
   if (base.length === 0) throw new Error('expected base probabilities for at least one class, got none');
-  const scores = classes.map((c) => combineSimilarity(c.signatureCosine, c.embeddingCosine, options.scale));
-  let best = -1;
-  scores.forEach((s, i) => { if (Number.isFinite(s) && (best < 0 || s > scores[best])) best = i; });
+  const { scores, nearestIndex, leadOverBuiltIn } = rankLibraryClasses(classes, options);
+  const winner = nearestIndex >= 0 ? classes[nearestIndex] : undefined;
   const headTop = Math.max(...base.map(([, p]) => p));
-  const winner = best >= 0 ? classes[best] : undefined;
-  const isBuiltIn = (label: string): boolean => (CLASSES as readonly string[]).includes(label);
-  const nearestBuiltIn = Math.max(Number.NEGATIVE_INFINITY, ...scores.filter((_, i) => isBuiltIn(classes[i].label)));
-  const isAccepted = winner !== undefined && !isBuiltIn(winner.label) && headTop <= options.headConfidenceCap
-    && scores[best] >= options.acceptSimilarity && scores[best] - nearestBuiltIn >= options.acceptMargin;
+  const isAccepted = winner !== undefined && isLibraryWinAccepted(winner.label, scores[nearestIndex], leadOverBuiltIn, headTop, options);
   const weight = isAccepted ? options.maxWeight : 0;
   const blended = new Map<string, number>(base.map(([name, p]) => [name, (1 - weight) * p]));
   const libraryPart = new Map<string, number>();
@@ -139,9 +150,50 @@ export function competeVerdict(baseProbabilities: Readonly<Record<string, number
     probabilities: Object.fromEntries(blended), className, probability,
     runnerUp: { className: runnerUp[0], probability: runnerUp[1] },
     libraryWeight: weight,
-    ...(winner !== undefined ? { nearestSimilarity: scores[best], nearestLabel: winner.label } : {}),
+    ...(winner !== undefined ? { nearestSimilarity: scores[nearestIndex], nearestLabel: winner.label } : {}),
     ...(isLibraryMatch ? { libraryMatch: { label: className, exampleCount: winnerClass.exampleCount } } : {}),
   };
+}
+
+/** Library classes ranked for a query (see rankLibraryClasses). */
+export interface LibraryRanking {
+  /** Combined similarity per class (input order); −Infinity when the class has nothing comparable. */
+  readonly scores: readonly number[];
+  /** Index of the nearest class (first of ties), −1 when no score is finite. */
+  readonly nearestIndex: number;
+  /** Nearest score minus the best built-in-named class's score; +Infinity when there is none. */
+  readonly leadOverBuiltIn: number;
+}
+
+/**
+ * Combined similarity of every library class (mean or nearest-entry cosines, per
+ * `options.classAggregate`), the nearest class and its lead over the library's built-in-named classes.
+ */
+export function rankLibraryClasses(classes: readonly ClassSimilarity[], options: CompetitionOptions): LibraryRanking {
+  const scores = classes.map((c) => (options.classAggregate === 'max'
+    ? combineSimilarity(c.maxSignatureCosine, c.maxEmbeddingCosine, options.scale)
+    : combineSimilarity(c.signatureCosine, c.embeddingCosine, options.scale)));
+  let nearestIndex = -1;
+  let nearestBuiltIn = Number.NEGATIVE_INFINITY;
+  scores.forEach((s, i) => {
+    if (Number.isFinite(s) && (nearestIndex < 0 || s > scores[nearestIndex])) nearestIndex = i;
+    if (isBuiltInLabel(classes[i].label) && s > nearestBuiltIn) nearestBuiltIn = s;
+  });
+  const leadOverBuiltIn = nearestIndex < 0 ? Number.NEGATIVE_INFINITY : scores[nearestIndex] - nearestBuiltIn;
+  return { scores, nearestIndex, leadOverBuiltIn };
+}
+
+/**
+ * The competition's gate: may the nearest library class `label` (combined similarity `score`,
+ * `leadOverBuiltIn` ahead of the built-in-named classes) overrule a head whose top calibrated
+ * probability is `headTop`? Only a team label, only an unsure head, only a near enough match.
+ */
+export function isLibraryWinAccepted(label: string, score: number, leadOverBuiltIn: number, headTop: number, options: CompetitionOptions): boolean {
+  return !isBuiltInLabel(label) && headTop <= options.headConfidenceCap && score >= options.acceptSimilarity && leadOverBuiltIn >= options.acceptMargin;
+}
+
+function isBuiltInLabel(label: string): boolean {
+  return (CLASSES as readonly string[]).includes(label);
 }
 
 function checkOptions(options: CompetitionOptions): void {

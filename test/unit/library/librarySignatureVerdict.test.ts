@@ -3,7 +3,7 @@ import { competeVerdict, computeClassSimilarities, type CompetitionOptions } fro
 
 // Unit scale (mean 0, sd 1), signature weight 0.5: the combined similarity is (sig + emb)/2.
 const options: CompetitionOptions = {
-  scale: { signatureWeight: 0.5, signatureMean: 0, signatureSd: 1, embeddingMean: 0, embeddingSd: 1 },
+  scale: { signatureWeight: 0.5, signatureMean: 0, signatureSd: 1, embeddingMean: 0, embeddingSd: 1 }, classAggregate: 'mean',
   acceptSimilarity: 0.6, acceptMargin: 0, headConfidenceCap: 0.9, maxWeight: 0.9, temperature: 0.25,
 };
 const unsureHead = { normal: 0.2, cpu_saturation: 0.7, memory_leak: 0.1 };
@@ -21,9 +21,12 @@ describe('computeClassSimilarities', () => {
     assert.equal(classes[0].exampleCount, 2);
     assert.ok(Math.abs(classes[0].embeddingCosine! - 0.5) < 1e-12);
     assert.ok(Math.abs(classes[0].signatureCosine! - (1 + Math.SQRT1_2) / 2) < 1e-12);
+    // Nearest entry: the largest of each.
+    assert.equal(classes[0].maxEmbeddingCosine, 1);
+    assert.ok(Math.abs(classes[0].maxSignatureCosine! - 1) < 1e-12);
     // An entry without a signature leaves the class's signature mean undefined.
     assert.equal(classes.length, 2);
-    assert.deepEqual(classes[1], { label: 'cpu_saturation', exampleCount: 1, embeddingCosine: -1 });
+    assert.deepEqual(classes[1], { label: 'cpu_saturation', exampleCount: 1, embeddingCosine: -1, maxEmbeddingCosine: -1 });
   });
 
   it('leaves entries that share no metric id with the query out of the signature mean', () => {
@@ -74,6 +77,15 @@ describe('competeVerdict', () => {
     // Lead = 0.9 − 0.7 = 0.2 sd units.
     assert.equal(competeVerdict(unsureHead, classes, { ...options, acceptMargin: 0.19 }).className, 'pool_leak');
     assert.equal(competeVerdict(unsureHead, classes, { ...options, acceptMargin: 0.21 }).className, 'cpu_saturation');
+  });
+
+  it('compares nearest entries instead of class means when classAggregate is max', () => {
+    const classes = [
+      { label: 'pool_leak', exampleCount: 2, signatureCosine: 0.5, embeddingCosine: 0.5, maxSignatureCosine: 0.95, maxEmbeddingCosine: 0.95 },
+      { label: 'cpu_saturation', exampleCount: 2, signatureCosine: 0.7, embeddingCosine: 0.7, maxSignatureCosine: 0.75, maxEmbeddingCosine: 0.75 },
+    ];
+    assert.equal(competeVerdict(unsureHead, classes, options).nearestLabel, 'cpu_saturation');
+    assert.equal(competeVerdict(unsureHead, classes, { ...options, classAggregate: 'max' }).className, 'pool_leak');
   });
 
   it('does not claim a window the head is confident about, however similar', () => {

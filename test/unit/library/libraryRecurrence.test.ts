@@ -1,0 +1,92 @@
+import assert from 'node:assert/strict';
+import { join } from 'node:path';
+import { loadClassifierModel, type LoadedClassifier } from '../../../extension/runtime/onnxRunner';
+import { computeCalibratedLogProbabilities } from '../../../extension/core/model/classifier';
+import { encodeBatch } from '../../../extension/core/model/encode';
+import { createLibraryEntry, formatLibraryModelVersion } from '../../../extension/core/model/libraryEntry';
+import { matchLibrary } from '../../../extension/core/model/libraryMatch';
+import { DEFAULT_COMPETITION_OPTIONS } from '../../../extension/core/model/librarySignatureVerdict';
+import type { LibraryEntry } from '../../../extension/core/model/libraryTypes';
+import type { MetricWindow } from '../../../extension/core/model/types';
+import { buildSystemSpec, mixSeeds, sampleExamples, type SimClass, type TrainingExample } from '../../../training/simulator';
+import { CLASSES } from '../../../extension/core/model/types';
+
+// Real bundled model (media/model) on simulated incidents of one invented Larkspur Provisions
+// service: the team labels a few of its own connection-pool exhaustions, then meets new ones.
+const MODEL_DIR = join(__dirname, '../../../media/model');
+const POOL = 'connection_pool_exhaustion';
+
+interface Classified { readonly example: TrainingExample; readonly probabilities: Record<string, number>; readonly embedding: number[] }
+
+async function classify(model: LoadedClassifier, examples: readonly TrainingExample[]): Promise<Classified[]> {
+  const output = await model.runner.run(encodeBatch(examples.map((e) => e.metrics), model.spec.windowSpec));
+  return examples.map((example, i) => {
+    const logProbabilities = computeCalibratedLogProbabilities(output.logits.subarray(i * output.classCount, (i + 1) * output.classCount), model.spec.temperature);
+    return {
+      example,
+      probabilities: Object.fromEntries(model.spec.classes.map((c, j) => [c, Math.exp(logProbabilities[j])])),
+      embedding: Array.from(output.embedding.subarray(i * output.embeddingSize, (i + 1) * output.embeddingSize)),
+    };
+  });
+}
+
+function toEntry(c: Classified, index: number, modelVersion: string): LibraryEntry {
+  return createLibraryEntry({
+    id: `20261202T0${index}0000Z-00000${index}`, label: c.example.label, window: { startMs: 0, endMs: 1 }, baseline: { startMs: 0, endMs: 1 },
+    exportSha256: '0'.repeat(64), exportFile: `exports/pantry-db-${index}.csv`, createdMs: 0, modelVersion, embedding: c.embedding,
+    metrics: c.example.metrics.map((m: MetricWindow) => ({ ...m, name: m.id })),
+  });
+}
+
+/** First simulated system (from seed 500 on) that exports a connection-pool metric. */
+function findSystemWithPoolMetrics(): number {
+  for (let seed = 500; seed < 600; seed++) if (buildSystemSpec(seed).series.some((s) => s.role.key.startsWith('pool'))) return seed;
+  throw new Error('expected a simulated system with a pool metric among seeds 500..599, found none');
+}
+
+describe('incident library with the real bundled model: a recurrence on the same service', () => {
+  let model: LoadedClassifier;
+  let modelVersion: string;
+  let library: LibraryEntry[];
+  let system: number;
+  const draw = (part: number, count: number, classes: readonly SimClass[]): TrainingExample[] =>
+    sampleExamples({ seed: mixSeeds(20261202, part, system), count, systemSeeds: [system], classes });
+
+  before(async () => {
+    model = await loadClassifierModel(MODEL_DIR);
+    modelVersion = formatLibraryModelVersion(model.spec.version, model.sha256);
+    system = findSystemWithPoolMetrics();
+    // The team's library: 3 of its pool exhaustions and 2 of its incidents per built-in class.
+    const labelled = await classify(model, [...draw(1, 3, [POOL]), ...draw(2, 2 * CLASSES.length, CLASSES)]);
+    library = labelled.map((c, i) => toEntry(c, i, modelVersion));
+  });
+  after(async () => { await model.runner.release(); });
+
+  it('recognises most new pool exhaustions of that service as the team\'s past incident', async () => {
+    const queries = await classify(model, draw(3, 12, [POOL]));
+    let recognised = 0;
+    for (const q of queries) {
+      const match = matchLibrary(q.probabilities, q.embedding, library, modelVersion, { metrics: q.example.metrics });
+      if (match.verdict.libraryMatch?.label === POOL) {
+        recognised += 1;
+        assert.equal(match.verdict.className, POOL);
+        assert.equal(match.verdict.libraryMatch.exampleCount, 3);
+      }
+    }
+    console.log(`      recognised ${recognised} of ${queries.length} (system ${system}, model ${modelVersion})`);
+    assert.ok(recognised >= 6, `expected at least 6 of 12 recognised, got ${recognised}`);
+  });
+
+  it('never claims a built-in incident the head is confident about', async () => {
+    const queries = await classify(model, draw(4, 4 * CLASSES.length, CLASSES));
+    const confident = queries.filter((q) => Math.max(...Object.values(q.probabilities)) > DEFAULT_COMPETITION_OPTIONS.headConfidenceCap);
+    assert.ok(confident.length >= 5, `expected several confident head verdicts to check, got ${confident.length}`);
+    for (const q of confident) {
+      const match = matchLibrary(q.probabilities, q.embedding, library, modelVersion, { metrics: q.example.metrics });
+      const head = Object.entries(q.probabilities).reduce((a, b) => (b[1] > a[1] ? b : a))[0];
+      assert.equal(match.verdict.libraryWeight, 0);
+      assert.equal(match.verdict.className, head);
+      assert.equal(match.verdict.libraryMatch, undefined);
+    }
+  });
+});
