@@ -334,11 +334,13 @@ function toGateCase(q: EmbeddedExample, classes: readonly ClassSimilarity[], opt
  * product's gate (rankLibraryClasses + isLibraryWinAccepted) and takes the gated label as the
  * verdict; the reported rows then run the full competeVerdict. Undefined when no setting keeps the budget.
  */
-function calibrateCompetition(groups: readonly EvaluationGroup[], heldOutClasses: readonly string[], weights: readonly number[], f1BudgetPoints: number, aggregates: readonly ClassAggregate[] = ['mean']): { options: CompetitionOptions; accuracy: number } | undefined {
+function calibrateCompetition(groups: readonly EvaluationGroup[], heldOutClasses: readonly string[], weights: readonly number[], f1BudgetPoints: number, aggregates: readonly ClassAggregate[] = ['mean'], overrides: readonly number[] = [Number.POSITIVE_INFINITY]): { options: CompetitionOptions; accuracy: number } | undefined {
   const sims = computeEpisodeSimilarities(groups, heldOutClasses, 3, 6);
   const builtInTruth = groups.flatMap((g) => g.builtIn.map((e) => e.label));
   const f1Base = computeMacroF1(builtInTruth, groups.flatMap((g) => predictBase(g.builtIn)), CLASSES);
-  const margins = groups.some((g) => g.builtInSupport !== undefined) ? [0, 0.25, 0.5, 1] : [0];
+  const hasBuiltInSupport = groups.some((g) => g.builtInSupport !== undefined);
+  const margins = hasBuiltInSupport ? [0, 0.25, 0.5, 1] : [0];
+  if (!hasBuiltInSupport) overrides = [Number.POSITIVE_INFINITY];
   let best: { options: CompetitionOptions; accuracy: number } | undefined;
   for (const classAggregate of aggregates) for (const signatureWeight of weights) {
     const scale = estimateSimilarityScale(sims, signatureWeight, classAggregate);
@@ -349,8 +351,8 @@ function calibrateCompetition(groups: readonly EvaluationGroup[], heldOutClasses
     }));
     for (const acceptSimilarity of [-0.5, 0, 0.25, 0.5, 0.75, 1, 1.25, 1.5, 1.75, 2, 2.5, 3]) {
       for (const headConfidenceCap of [0.5, 0.6, 0.7, 0.8, 0.9, 0.95, 1]) {
-        for (const acceptMargin of margins) {
-          const options: CompetitionOptions = { ...ranked, acceptSimilarity, acceptMargin, headConfidenceCap };
+        for (const [acceptMargin, overrideMargin] of margins.flatMap((m) => overrides.map((o) => [m, o] as const))) {
+          const options: CompetitionOptions = { ...ranked, acceptSimilarity, acceptMargin, overrideMargin, headConfidenceCap };
           const decide = (c: GateCase): string => (isLibraryWinAccepted(c.nearestLabel, c.score, c.lead, c.headTop, options) ? c.nearestLabel : c.head);
           const accuracy = mean(episodes.map((e) => computeAccuracy(e.heldOut.map((c) => c.truth), e.heldOut.map(decide))));
           const f1 = mean(episodes.map((e) => computeMacroF1(builtInTruth, e.builtIn.map(decide), CLASSES)));
@@ -363,7 +365,7 @@ function calibrateCompetition(groups: readonly EvaluationGroup[], heldOutClasses
 }
 
 const describeCompetition = (o: CompetitionOptions): string =>
-  `${o.classAggregate} of each class, signatureWeight ${o.scale.signatureWeight}, scale sig ${o.scale.signatureMean}±${o.scale.signatureSd} emb ${o.scale.embeddingMean}±${o.scale.embeddingSd}, acceptSimilarity ${o.acceptSimilarity}, acceptMargin ${o.acceptMargin}, headConfidenceCap ${o.headConfidenceCap}, maxWeight ${o.maxWeight}, temperature ${o.temperature}`;
+  `${o.classAggregate} of each class, signatureWeight ${o.scale.signatureWeight}, scale sig ${o.scale.signatureMean}±${o.scale.signatureSd} emb ${o.scale.embeddingMean}±${o.scale.embeddingSd}, acceptSimilarity ${o.acceptSimilarity}, acceptMargin ${o.acceptMargin}, overrideMargin ${o.overrideMargin}, headConfidenceCap ${o.headConfidenceCap}, maxWeight ${o.maxWeight}, temperature ${o.temperature}`;
 
 const formatRow = (rule: string, r: KResult): string =>
   `| ${rule} | ${r.k} | ${format(r.accuracyMean)} ± ${format(r.accuracySd)} | ${format(r.accuracyPrototypeOnly)} | ${format(r.f1Base)} → ${format(r.f1WithLibraryMean)} | ${(100 * (r.f1Base - r.f1WithLibraryMean)).toFixed(2)} | ${(100 * r.f1DropWorst).toFixed(2)} |\n`;
@@ -379,6 +381,7 @@ function writeTable(title: string, calibration: readonly EvaluationGroup[], repo
   const rules: CalibratedRules = new Map([
     ['compete, combined', calibrateCompetition(calibration, classes, [0.25, 0.5, 0.75], args.budget)?.options],
     ['compete, combined, nearest entry', calibrateCompetition(calibration, classes, [0.25, 0.5, 0.75], args.budget, ['max'])?.options],
+    ['compete, combined, with override', calibrateCompetition(calibration, classes, [0.25, 0.5, 0.75], args.budget, ['mean', 'max'], [Number.POSITIVE_INFINITY, 0.5, 1, 1.5, 2, 3])?.options],
     ['compete, signature only', calibrateCompetition(calibration, classes, [1], args.budget)?.options],
     ['compete, embedding only', calibrateCompetition(calibration, classes, [0], args.budget)?.options],
   ]);

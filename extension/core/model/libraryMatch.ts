@@ -1,6 +1,6 @@
 import type { LibraryEntry } from './libraryTypes';
 import { toMetricWindows } from './libraryEntry';
-import { computeMetricSignature, type SignatureMetric } from './librarySignature';
+import { computeMetricSignature, type MetricSignature, type SignatureMetric } from './librarySignature';
 import { competeVerdict, computeClassSimilarities, DEFAULT_COMPETITION_OPTIONS, type CompetitionOptions } from './librarySignatureVerdict';
 import { findNearestIncidents, type BlendedVerdict, type NearestIncident } from './libraryVerdict';
 import type { WindowSpec } from './encode';
@@ -28,6 +28,17 @@ export type LibraryQuery =
   | { readonly metrics: readonly SignatureMetric[]; readonly windowSpec?: WindowSpec }
   | { readonly frame: MetricFrame; readonly incident: IndexWindow; readonly baseline: IndexWindow; readonly windowSpec?: WindowSpec };
 
+// Entries are immutable and live as long as the loaded library; their signatures are recomputed only when it reloads.
+const entrySignatures = new WeakMap<LibraryEntry, { spec: WindowSpec | undefined; signature: MetricSignature }>();
+
+function getEntrySignature(entry: LibraryEntry, spec: WindowSpec | undefined): MetricSignature {
+  const cached = entrySignatures.get(entry);
+  if (cached !== undefined && cached.spec === spec) return cached.signature;
+  const signature = computeMetricSignature(toMetricWindows(entry), spec);
+  entrySignatures.set(entry, { spec, signature });
+  return signature;
+}
+
 function toQueryMetrics(query: LibraryQuery): readonly SignatureMetric[] {
   return 'metrics' in query ? query.metrics : extractLibraryMetrics(query.frame, query.incident, query.baseline);
 }
@@ -53,11 +64,8 @@ export function matchLibrary(
   nearestCount = 3,
 ): LibraryMatch {
   const current = entries.filter((e) => e.modelVersion === modelVersion && e.embedding.length === embedding.length);
-  const signatureOf = query === undefined
-    ? () => undefined
-    : (metrics: readonly SignatureMetric[]) => computeMetricSignature(metrics, query.windowSpec);
-  const querySide = { embedding, signature: query === undefined ? undefined : signatureOf(toQueryMetrics(query)) };
-  const competing = current.map((e) => ({ label: e.label, embedding: e.embedding, signature: signatureOf(toMetricWindows(e)) }));
+  const querySide = { embedding, signature: query === undefined ? undefined : computeMetricSignature(toQueryMetrics(query), query.windowSpec) };
+  const competing = current.map((e) => ({ label: e.label, embedding: e.embedding, signature: query === undefined ? undefined : getEntrySignature(e, query.windowSpec) }));
   const verdict = competeVerdict(baseProbabilities, computeClassSimilarities(querySide, competing), options);
   return {
     verdict,

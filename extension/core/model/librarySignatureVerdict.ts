@@ -56,6 +56,12 @@ export interface CompetitionOptions {
    * built-in name (the team's own incidents of known types), when the library has any; 0 = none.
    */
   readonly acceptMargin: number;
+  /**
+   * A lead over the library's built-in-named classes (sd units) at which the team label wins even
+   * against a confident head or below acceptSimilarity: the team's own incidents of the head's
+   * kind look less like this window than their other label does. Infinity = never.
+   */
+  readonly overrideMargin: number;
   /** The library may overrule the head only when the head's top calibrated probability is ≤ this. */
   readonly headConfidenceCap: number;
   /** Share of probability mass the library takes when it wins, 0..1. */
@@ -73,6 +79,7 @@ export const DEFAULT_COMPETITION_OPTIONS: CompetitionOptions = {
   classAggregate: 'mean',
   acceptSimilarity: 1,
   acceptMargin: 0,
+  overrideMargin: Number.POSITIVE_INFINITY,
   headConfidenceCap: 0.9,
   maxWeight: 0.9,
   temperature: 0.25,
@@ -110,9 +117,10 @@ export function computeClassSimilarities(query: CompetingQuery, entries: readonl
  * Blend the head's calibrated probabilities with the library by competition. The nearest library
  * class c* (highest combined similarity s*, see combineSimilarity, of the class's mean or nearest-entry
  * cosines as `classAggregate` says; ties keep the first) takes the
- * library weight w = maxWeight when all four hold: c* is not a built-in class, the head's top
- * probability ≤ headConfidenceCap, s* ≥ acceptSimilarity, and s* leads the nearest built-in-named
- * library class (if any) by ≥ acceptMargin; otherwise w = 0 and the base
+ * library weight w = maxWeight when isLibraryWinAccepted says so (c* is not a built-in class; and
+ * either the head's top probability ≤ headConfidenceCap, s* ≥ acceptSimilarity and s* leads the
+ * nearest built-in-named library class (if any) by ≥ acceptMargin, or that lead ≥ overrideMargin);
+ * otherwise w = 0 and the base
  * verdict is returned unchanged. With w > 0: p(c) = (1 − w)·base(c) + w·q(c), q = softmax of the
  * class similarities / temperature (a built-in label adds to its class). `libraryMatch` is set
  * when the winner got more of its probability from the library than from the head. Throws when
@@ -186,10 +194,14 @@ export function rankLibraryClasses(classes: readonly ClassSimilarity[], options:
 /**
  * The competition's gate: may the nearest library class `label` (combined similarity `score`,
  * `leadOverBuiltIn` ahead of the built-in-named classes) overrule a head whose top calibrated
- * probability is `headTop`? Only a team label, only an unsure head, only a near enough match.
+ * probability is `headTop`? Only a team label; then either an unsure head, a near enough match and
+ * a lead ≥ acceptMargin, or a lead ≥ overrideMargin over the team's incidents of built-in kinds.
  */
 export function isLibraryWinAccepted(label: string, score: number, leadOverBuiltIn: number, headTop: number, options: CompetitionOptions): boolean {
-  return !isBuiltInLabel(label) && headTop <= options.headConfidenceCap && score >= options.acceptSimilarity && leadOverBuiltIn >= options.acceptMargin;
+  if (isBuiltInLabel(label) || !(score > Number.NEGATIVE_INFINITY)) return false;
+  // The override needs built-in-named classes to lead over (a finite lead); without them only the plain gate applies.
+  if (Number.isFinite(leadOverBuiltIn) && leadOverBuiltIn >= options.overrideMargin) return true;
+  return headTop <= options.headConfidenceCap && score >= options.acceptSimilarity && leadOverBuiltIn >= options.acceptMargin;
 }
 
 function isBuiltInLabel(label: string): boolean {
@@ -199,5 +211,5 @@ function isBuiltInLabel(label: string): boolean {
 function checkOptions(options: CompetitionOptions): void {
   if (!(options.maxWeight >= 0 && options.maxWeight <= 1)) throw new Error(`expected maxWeight in 0..1, got ${options.maxWeight}`);
   if (!(options.temperature > 0)) throw new Error(`expected temperature > 0, got ${options.temperature}`);
-  if ([options.acceptSimilarity, options.acceptMargin, options.headConfidenceCap].some(Number.isNaN)) throw new Error('expected numeric acceptSimilarity, acceptMargin and headConfidenceCap, got NaN');
+  if ([options.acceptSimilarity, options.acceptMargin, options.overrideMargin, options.headConfidenceCap].some(Number.isNaN)) throw new Error('expected numeric acceptSimilarity, acceptMargin, overrideMargin and headConfidenceCap, got NaN');
 }

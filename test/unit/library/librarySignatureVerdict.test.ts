@@ -4,7 +4,7 @@ import { competeVerdict, computeClassSimilarities, type CompetitionOptions } fro
 // Unit scale (mean 0, sd 1), signature weight 0.5: the combined similarity is (sig + emb)/2.
 const options: CompetitionOptions = {
   scale: { signatureWeight: 0.5, signatureMean: 0, signatureSd: 1, embeddingMean: 0, embeddingSd: 1 }, classAggregate: 'mean',
-  acceptSimilarity: 0.6, acceptMargin: 0, headConfidenceCap: 0.9, maxWeight: 0.9, temperature: 0.25,
+  acceptSimilarity: 0.6, acceptMargin: 0, overrideMargin: Number.POSITIVE_INFINITY, headConfidenceCap: 0.9, maxWeight: 0.9, temperature: 0.25,
 };
 const unsureHead = { normal: 0.2, cpu_saturation: 0.7, memory_leak: 0.1 };
 
@@ -93,6 +93,19 @@ describe('competeVerdict', () => {
     assert.equal(v.className, 'cpu_saturation');
     assert.equal(v.probability, 0.95);
     assert.equal(v.libraryWeight, 0);
+  });
+
+  it('lets a team label overrule a confident head only by the override lead over the team\'s built-in-named incidents', () => {
+    const confidentHead = { normal: 0.01, cpu_saturation: 0.98, memory_leak: 0.01 };
+    const classes = [
+      { label: 'cpu_steal', exampleCount: 3, signatureCosine: 0.9, embeddingCosine: 0.9 },
+      { label: 'cpu_saturation', exampleCount: 3, signatureCosine: -0.6, embeddingCosine: 0.4 },
+    ];
+    // Lead = 0.9 − (−0.1) = 1.0 sd units.
+    assert.equal(competeVerdict(confidentHead, classes, { ...options, overrideMargin: 1.1 }).className, 'cpu_saturation');
+    assert.equal(competeVerdict(confidentHead, classes, { ...options, overrideMargin: 0.9 }).className, 'cpu_steal');
+    // Without built-in-named classes in the library there is no lead to judge: the plain gate holds.
+    assert.equal(competeVerdict(confidentHead, [classes[0]], { ...options, overrideMargin: 0 }).className, 'cpu_saturation');
   });
 
   it('does not claim a window below the acceptance similarity, and an empty library changes nothing', () => {
