@@ -191,18 +191,19 @@ const DRAWS_PER_STEP = 13;
  * count and order never depend on the drivers, so a counterfactual without the fault sees exactly
  * the same noise, and the draws can be taken once and used for both. `u` is scratch (13 values).
  */
-function drawStep(rng: Random, u: Float64Array, r: Float64Array): void {
+function drawStep(rng: Random, u: Float64Array, r: Float64Array, needs: StepNeeds): void {
   rng.fillUniform(u, 0, DRAWS_PER_STEP);
+  // Every uniform is drawn; a normal is looked up only when an observable that is read uses it.
   r[0] = normalFromUniform(u[0] as number); // steal jitter
   r[1] = u[1] as number; // usable share of capacity
   r[2] = u[2] as number; // iowait spread
   r[3] = u[3] as number; // pool wait jitter, drawn always
-  r[4] = normalFromUniform(u[4] as number); // error ratio noise
+  r[4] = needs.errors ? normalFromUniform(u[4] as number) : 0; // error ratio noise
   r[5] = u[5] as number; // time since a restart
-  r[6] = normalFromUniform(u[6] as number); // load noise
+  r[6] = needs.iowait ? normalFromUniform(u[6] as number) : 0; // load noise
   r[7] = u[7] as number; // throttle spread
-  r[8] = normalFromUniform(u[8] as number); // retransmit noise
-  r[9] = normalFromUniform(u[9] as number); // drop noise
+  r[8] = needs.retrans ? normalFromUniform(u[8] as number) : 0; // retransmit noise
+  r[9] = needs.drops ? normalFromUniform(u[9] as number) : 0; // drop noise
   if ((u[10] as number) < 0.01) {
     // Stray drops: uniform(0, 3) takes the next draw, which shifts the last two by one.
     r[10] = 0 + (3 - 0) * (u[11] as number);
@@ -215,6 +216,44 @@ function drawStep(rng: Random, u: Float64Array, r: Float64Array): void {
   }
 }
 
+/**
+ * Which costly observable groups some reader uses. A group nobody reads is not computed (its
+ * arrays hold NaN); its draws are still taken, so the generator sequence is unchanged.
+ */
+interface StepNeeds {
+  /** iowait, idle, load (iowait takes a pow). */
+  readonly iowait: boolean;
+  /** errorRatio, successRatio, errorRate (an exp, and the server latency). */
+  readonly errors: boolean;
+  /** serverLatency, callerLatency, inflight, or the error group (an exp). */
+  readonly server: boolean;
+  readonly retrans: boolean;
+  readonly drops: boolean;
+}
+const ALL_NEEDED: StepNeeds = { iowait: true, errors: true, server: true, retrans: true, drops: true };
+
+/** The groups of observables that `needed` reads; all when `needed` is undefined. */
+function findStepNeeds(needed: ReadonlySet<ObservableKey> | undefined): StepNeeds {
+  if (!needed) return ALL_NEEDED;
+  const errors = needed.has('errorRatio') || needed.has('successRatio') || needed.has('errorRate');
+  return {
+    iowait: needed.has('iowait') || needed.has('idle') || needed.has('load'),
+    errors,
+    server: errors || needed.has('serverLatency') || needed.has('callerLatency') || needed.has('inflight'),
+    retrans: needed.has('retrans'),
+    drops: needed.has('drops'),
+  };
+}
+
+/** Observable arrays of the groups `needs` leaves out, which writeStep does not write. */
+const SKIPPABLE: ReadonlyArray<readonly [keyof StepNeeds, readonly ObservableKey[]]> = [
+  ['iowait', ['iowait', 'idle', 'load']],
+  ['errors', ['errorRatio', 'successRatio', 'errorRate']],
+  ['server', ['serverLatency', 'callerLatency', 'inflight']],
+  ['retrans', ['retrans']],
+  ['drops', ['drops']],
+];
+
 /** Slow noise series shared by every step (drawn once per render). */
 interface StepNoise {
   readonly baseTraffic: Float64Array;
@@ -225,7 +264,7 @@ interface StepNoise {
 }
 
 /** Writes every observable except uptime and restarts (the only ones that carry state across steps) at step `i`. */
-function writeStep(p: ServiceParams, d: Drivers, i: number, noise: StepNoise, r: Float64Array, o: Observables): void {
+function writeStep(p: ServiceParams, d: Drivers, i: number, noise: StepNoise, r: Float64Array, o: Observables, needs: StepNeeds): void {
   const traffic = (noise.baseTraffic[i] as number) * (d.trafficScale[i] as number);
   const loadRatio = traffic / p.requestRatePerS;
   const mem = clamp(p.memBaseRatio * Math.exp(noise.mem[i] as number) + (d.memExtra[i] as number) + (d.memLeak[i] as number), 0.02, 0.995);
@@ -235,10 +274,8 @@ function writeStep(p: ServiceParams, d: Drivers, i: number, noise: StepNoise, r:
   const capacity = 1 - steal;
   const cpu = Math.min(demand, capacity * (0.97 + 0.025 * (r[1] as number)));
   const rho = demand / capacity;
-  const cpuFactor = 1 + p.queueSensitivity * Math.max(0, rho - 0.6) ** 2 / Math.max(0.04, 1 - rho) + 3 * Math.max(0, rho - 1);
   const diskBusy = clamp((p.diskBase + p.diskPerLoad * loadRatio) * Math.exp(noise.disk[i] as number) + (d.diskExtra[i] as number), 0.001, 0.999);
   const diskFactor = 1 / Math.max(0.03, 1 - diskBusy);
-  const iowait = clamp(0.002 + 0.35 * diskBusy ** 4 * (0.8 + 0.4 * (r[2] as number)), 0, 1 - cpu);
   const dependency = p.dependencyLatencyS * (1 + 0.2 * gcPressure) + (d.dependencyDelayS[i] as number);
   const poolDemand = p.poolBaseRatio * loadRatio * (dependency / p.dependencyLatencyS) * (d.poolHold[i] as number);
   const poolUse = Math.min(1, poolDemand);
@@ -246,17 +283,31 @@ function writeStep(p: ServiceParams, d: Drivers, i: number, noise: StepNoise, r:
   const poolJitter = r[3] as number;
   const poolWait = overflow > 0 ? dependency * overflow * 2 : 0.0005 * poolJitter;
   const client = dependency + poolWait;
-  const ownWork = p.serverLatencyS * (1 - p.dependencyShare) * cpuFactor * (1 + p.persistenceShare * (diskFactor - 1) * 0.3) * (1 + 2 * steal);
-  const server = (ownWork + p.dependencyShare * client / Math.max(1e-9, p.dependencyLatencyS) * p.serverLatencyS) * (d.latencyScale[i] as number) * Math.exp(0.7 * (noise.slow[i] as number));
-  // Timeouts only once requests run far past their usual time (and only in some systems).
-  const timeoutErrors = Math.min(0.5, p.timeoutSensitivity * Math.max(0, server / p.serverLatencyS - 8) + 0.3 * p.timeoutSensitivity * 10 * Math.min(1, overflow));
-  const errorRatio = clamp(p.errorBaseRatio * Math.exp(0.4 * (r[4] as number)) + (d.errorExtra[i] as number) + timeoutErrors + p.lossErrorShare * (d.lossFraction[i] as number), 0, 1);
+  if (needs.iowait) {
+    const iowait = clamp(0.002 + 0.35 * diskBusy ** 4 * (0.8 + 0.4 * (r[2] as number)), 0, 1 - cpu);
+    o.iowait[i] = iowait;
+    o.idle[i] = Math.max(0, 1 - cpu - iowait - steal);
+    o.load[i] = p.cores * (cpu + iowait * 2 + Math.max(0, rho - 0.95) * 4) * (1 + 0.1 * (r[6] as number) ** 2);
+  }
+  if (needs.server) {
+    const cpuFactor = 1 + p.queueSensitivity * Math.max(0, rho - 0.6) ** 2 / Math.max(0.04, 1 - rho) + 3 * Math.max(0, rho - 1);
+    const ownWork = p.serverLatencyS * (1 - p.dependencyShare) * cpuFactor * (1 + p.persistenceShare * (diskFactor - 1) * 0.3) * (1 + 2 * steal);
+    const server = (ownWork + p.dependencyShare * client / Math.max(1e-9, p.dependencyLatencyS) * p.serverLatencyS) * (d.latencyScale[i] as number) * Math.exp(0.7 * (noise.slow[i] as number));
+    o.serverLatency[i] = server;
+    o.callerLatency[i] = server + 0.002 + (d.callerDelayS[i] as number);
+    o.inflight[i] = traffic * server;
+    if (needs.errors) {
+      // Timeouts only once requests run far past their usual time (and only in some systems).
+      const timeoutErrors = Math.min(0.5, p.timeoutSensitivity * Math.max(0, server / p.serverLatencyS - 8) + 0.3 * p.timeoutSensitivity * 10 * Math.min(1, overflow));
+      const errorRatio = clamp(p.errorBaseRatio * Math.exp(0.4 * (r[4] as number)) + (d.errorExtra[i] as number) + timeoutErrors + p.lossErrorShare * (d.lossFraction[i] as number), 0, 1);
+      o.errorRatio[i] = errorRatio;
+      o.successRatio[i] = 1 - errorRatio;
+      o.errorRate[i] = errorRatio * traffic;
+    }
+  }
   o.traffic[i] = traffic;
   o.cpu[i] = cpu;
   o.steal[i] = steal;
-  o.iowait[i] = iowait;
-  o.idle[i] = Math.max(0, 1 - cpu - iowait - steal);
-  o.load[i] = p.cores * (cpu + iowait * 2 + Math.max(0, rho - 0.95) * 4) * (1 + 0.1 * (r[6] as number) ** 2);
   o.throttle[i] = clamp(Math.max(0, rho - 0.85) * 3, 0, 1) * (0.8 + 0.2 * (r[7] as number));
   o.mem[i] = mem;
   o.memAvailable[i] = 1 - mem;
@@ -266,20 +317,14 @@ function writeStep(p: ServiceParams, d: Drivers, i: number, noise: StepNoise, r:
   o.diskLatency[i] = 0.002 * diskFactor;
   o.diskBytes[i] = 4096 * (200 * diskBusy + 20 * loadRatio);
   o.netBytes[i] = traffic * p.bytesPerRequest * (1 - 3 * (d.lossFraction[i] as number));
-  o.retrans[i] = traffic * (p.retransPerRequest * Math.exp(0.5 * (r[8] as number)) + 20 * (d.lossFraction[i] as number));
-  o.drops[i] = traffic * 8 * (d.lossFraction[i] as number) * Math.exp(0.3 * (r[9] as number)) + (r[10] as number);
-  o.serverLatency[i] = server;
+  if (needs.retrans) o.retrans[i] = traffic * (p.retransPerRequest * Math.exp(0.5 * (r[8] as number)) + 20 * (d.lossFraction[i] as number));
+  if (needs.drops) o.drops[i] = traffic * 8 * (d.lossFraction[i] as number) * Math.exp(0.3 * (r[9] as number)) + (r[10] as number);
   o.clientLatency[i] = client;
-  o.callerLatency[i] = server + 0.002 + (d.callerDelayS[i] as number);
   o.tail[i] = 1 + 0.5 * p.tailSigma * Math.abs(r[11] as number) + (d.tailExtra[i] as number);
-  o.errorRatio[i] = errorRatio;
-  o.successRatio[i] = 1 - errorRatio;
-  o.errorRate[i] = errorRatio * traffic;
   o.poolUse[i] = poolUse;
   o.poolPending[i] = overflow * p.poolSize * 3 + (r[12] as number);
   o.poolWait[i] = poolWait;
   o.threads[i] = 40 + 30 * cpu + 60 * poolUse;
-  o.inflight[i] = traffic * server;
 }
 
 /** Same value bit for bit (so +0 and -0 differ, and NaN is never taken as equal: recomputed). */
@@ -304,8 +349,19 @@ function markDifferingSteps(a: Drivers, b: Drivers, n: number): Uint8Array {
  * latency grows with CPU and disk utilisation as 1/(1-ρ) beyond a knee; the pool fills with
  * traffic × hold time; errors rise from timeouts when latency explodes.
  */
-export function deriveObservables(p: ServiceParams, d: Drivers, baseTraffic: Float64Array, rng: Random, stepMs: number, intoScratch = false): Observables {
-  return deriveBoth(p, d, undefined, baseTraffic, rng, stepMs, intoScratch).faulted;
+export function deriveObservables(p: ServiceParams, d: Drivers, baseTraffic: Float64Array, rng: Random, stepMs: number, options: DeriveOptions = {}): Observables {
+  return deriveBoth(p, d, undefined, baseTraffic, rng, stepMs, options).faulted;
+}
+
+/** Savings for a caller that reads the observables at once (renderSystem with reuseBuffers). */
+export interface DeriveOptions {
+  /** The observables are views of reused buffers, valid until the next render. */
+  readonly intoScratch?: boolean;
+  /**
+   * The only observables anyone reads; groups of others that cost an exp or a pow are then not
+   * computed and hold NaN. Every draw is still taken, so the others are unchanged bit for bit.
+   */
+  readonly needed?: ReadonlySet<ObservableKey>;
 }
 
 /**
@@ -315,14 +371,15 @@ export function deriveObservables(p: ServiceParams, d: Drivers, baseTraffic: Flo
  * steps where the drivers differ (elsewhere every observable but uptime and restarts is the same
  * function of the same inputs) and copied from the faulted run at the others.
  */
-export function deriveObservablesWithCounterfactual(p: ServiceParams, d: Drivers, quietDrivers: Drivers, baseTraffic: Float64Array, rng: Random, stepMs: number, intoScratch = false): { faulted: Observables; counterfactual: Observables } {
-  const both = deriveBoth(p, d, quietDrivers, baseTraffic, rng, stepMs, intoScratch);
+export function deriveObservablesWithCounterfactual(p: ServiceParams, d: Drivers, quietDrivers: Drivers, baseTraffic: Float64Array, rng: Random, stepMs: number, options: DeriveOptions = {}): { faulted: Observables; counterfactual: Observables } {
+  const both = deriveBoth(p, d, quietDrivers, baseTraffic, rng, stepMs, options);
   return { faulted: both.faulted, counterfactual: both.counterfactual as Observables };
 }
 
-/** `intoScratch`: the observables are views of reused buffers, valid until the next render. */
-function deriveBoth(p: ServiceParams, d: Drivers, qd: Drivers | undefined, baseTraffic: Float64Array, rng: Random, stepMs: number, intoScratch: boolean): { faulted: Observables; counterfactual?: Observables } {
+function deriveBoth(p: ServiceParams, d: Drivers, qd: Drivers | undefined, baseTraffic: Float64Array, rng: Random, stepMs: number, options: DeriveOptions): { faulted: Observables; counterfactual?: Observables } {
   const n = baseTraffic.length;
+  const intoScratch = options.intoScratch === true;
+  const needs = findStepNeeds(options.needed);
   const observablesSize = OBSERVABLE_KEYS.length * n;
   const o = createObservables(n, intoScratch ? borrowScratch(ScratchSlot.Faulted, observablesSize) : undefined);
   const phi = Math.min(0.995, Math.exp(-stepMs / 300_000));
@@ -342,9 +399,16 @@ function deriveBoth(p: ServiceParams, d: Drivers, qd: Drivers | undefined, baseT
   let quietRestarts = restarts;
   const r = new Float64Array(DRAWS_PER_STEP);
   const u = new Float64Array(DRAWS_PER_STEP);
+  for (const [group, keys] of SKIPPABLE) {
+    if (needs[group]) continue;
+    for (const key of keys) {
+      o[key].fill(Number.NaN);
+      q?.[key].fill(Number.NaN);
+    }
+  }
   for (let i = 0; i < n; i += 1) {
-    drawStep(rng, u, r);
-    writeStep(p, d, i, noise, r, o);
+    drawStep(rng, u, r, needs);
+    writeStep(p, d, i, noise, r, o, needs);
     // Drawn on every step, so the number of draws does not depend on the drivers: a counterfactual
     // run without the fault (same generator state) then sees exactly the same noise.
     const restartDraw = r[5] as number;
@@ -357,7 +421,7 @@ function deriveBoth(p: ServiceParams, d: Drivers, qd: Drivers | undefined, baseT
     o.uptime[i] = uptimeS;
     o.restarts[i] = restarts;
     if (q && qd && differs) {
-      if (differs[i] === 1) writeStep(p, qd, i, noise, r, q);
+      if (differs[i] === 1) writeStep(p, qd, i, noise, r, q, needs);
       if ((qd.restart[i] as number) > 0) {
         quietUptimeS = stepS * restartDraw;
         quietRestarts += 1;

@@ -5,7 +5,7 @@
  */
 import { applyBenignEvent, drawBenignEvents, type BenignKind } from './benignEvents';
 import { applyFault, type FaultPlan } from './faults';
-import { borrowScratch, copyDrivers, createDrivers, deriveObservables, deriveObservablesWithCounterfactual, drawAr1, drawBaseTraffic, DRIVER_KEYS, ScratchSlot, type Observables } from './latentModel';
+import { borrowScratch, copyDrivers, createDrivers, deriveObservables, deriveObservablesWithCounterfactual, drawAr1, drawBaseTraffic, DRIVER_KEYS, ScratchSlot, type ObservableKey, type Observables } from './latentModel';
 import type { Random } from './random';
 import type { SeriesSpec, SystemSpec } from './systemSpec';
 import type { SimSeries, SimSystem } from './types';
@@ -23,7 +23,8 @@ export interface RenderRequest {
   /**
    * Render into buffers reused by the next render: series values, times and observables of the
    * result are then valid only until renderSystem is called again. For callers that copy what
-   * they need at once (sampleExamples); the values are the same either way.
+   * they need at once (sampleExamples); the values are the same either way. Observables that no
+   * rendered series reads are then left out (NaN).
    */
   readonly reuseBuffers?: boolean;
 }
@@ -138,6 +139,13 @@ function accumulate(s: SeriesSpec, values: Float64Array, o: Observables, rng: Ra
   }
 }
 
+/** Observables read when rendering `spec`: every series' source, the tail (quantile copies), restarts (counter resets). */
+function findNeededObservables(spec: SystemSpec): ReadonlySet<ObservableKey> {
+  const needed = new Set<ObservableKey>(['tail', 'restarts']);
+  for (const s of spec.series) if (!s.role.isIrrelevant) needed.add(s.role.source);
+  return needed;
+}
+
 /** exp(tailWeight · log tail) per step, computed once per weight (quantile copies of many roles share a weight). */
 function findTailFactor(cache: Map<number, Float64Array>, tailWeight: number, logTail: Float64Array): Float64Array {
   let factor = cache.get(tailWeight);
@@ -173,8 +181,11 @@ export function renderSystem(spec: SystemSpec, request: RenderRequest, rng: Rand
   for (const plan of request.faults) applyFault(drivers, plan, spec.params, rng);
   const baseTraffic = drawBaseTraffic(spec.params, rng, timesMs, spec.stepMs, true);
   // The counterfactual sees the same noise as the faulted run, so only the fault differs between the two.
-  const both = quietDrivers ? deriveObservablesWithCounterfactual(spec.params, drivers, quietDrivers, baseTraffic, rng, spec.stepMs, reuse) : undefined;
-  const o = both ? both.faulted : deriveObservables(spec.params, drivers, baseTraffic, rng, spec.stepMs, reuse);
+  // With reused buffers the result is read at once, by the series rendered here and by whoever
+  // measures their evidence: observables no series renders from are not needed.
+  const deriveOptions = reuse ? { intoScratch: true, needed: findNeededObservables(spec) } : {};
+  const both = quietDrivers ? deriveObservablesWithCounterfactual(spec.params, drivers, quietDrivers, baseTraffic, rng, spec.stepMs, deriveOptions) : undefined;
+  const o = both ? both.faulted : deriveObservables(spec.params, drivers, baseTraffic, rng, spec.stepMs, deriveOptions);
   const quiet = both?.counterfactual;
   // Every per-step array of the series comes from one allocation: each typed array of this size
   // otherwise gets its own off-heap store, and making and freeing those cost more than filling them.
