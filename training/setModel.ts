@@ -65,7 +65,7 @@ export function initSetModel(shape: SetModelShape, seed: number): SetModelWeight
 }
 
 /** Default architecture of the bundled model. */
-export const DEFAULT_SHAPE: SetModelShape = { featureCount: NODE_FEATURE_COUNT, hiddenSize: 32, embeddingSize: 32, classCount: 8 };
+export const DEFAULT_SHAPE: SetModelShape = { featureCount: NODE_FEATURE_COUNT, hiddenSize: 64, embeddingSize: 64, classCount: 8 };
 
 function denseRelu(input: Float64Array, w: Float32Array, b: Float32Array, outSize: number, isRelu: boolean): Float64Array {
   const inSize = input.length;

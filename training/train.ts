@@ -17,7 +17,7 @@ import { buildSplits } from './simulator';
 import { trainSetModel, type TrainOptions } from './trainSetModel';
 
 export const MODEL_DIR = join(__dirname, '..', 'media', 'model');
-export const MODEL_VERSION = '0.1.0';
+export const MODEL_VERSION = '0.2.0';
 
 /** Training recipe; evaluate.ts rebuilds the same splits from these numbers. */
 export interface TrainRecipe {
@@ -29,7 +29,7 @@ export interface TrainRecipe {
   readonly abstainThreshold: number;
 }
 
-export const FULL_RECIPE: TrainRecipe = { seed: 20261202, trainCount: 12000, calibrationCount: 2000, testCount: 2000, epochs: 16, abstainThreshold: 0.5 };
+export const FULL_RECIPE: TrainRecipe = { seed: 20261202, trainCount: 28000, calibrationCount: 2000, testCount: 2000, epochs: 16, abstainThreshold: 0.5 };
 export const QUICK_RECIPE: TrainRecipe = { seed: 20261202, trainCount: 3000, calibrationCount: 800, testCount: 800, epochs: 6, abstainThreshold: 0.5 };
 
 /** Logits [n, C] and embeddings [n, D] of encoded examples under `weights` (reference forward pass). */

@@ -75,7 +75,8 @@ describe('library CLI commands', () => {
     const text = readFileSync(join(dir, '.metric-triage', 'incident-library.json'), 'utf8');
     const document = JSON.parse(text) as { entries: { label: string; embedding: number[]; exportSha256: string; window: { startMs: number } }[] };
     assert.equal(document.entries[0].label, 'cpu_spike_job');
-    assert.equal(document.entries[0].embedding.length, 32);
+    const spec = JSON.parse(readFileSync(join(__dirname, '../../../media/model/classifier.json'), 'utf8')) as { embeddingSize: number };
+    assert.equal(document.entries[0].embedding.length, spec.embeddingSize);
     assert.equal(document.entries[0].window.startMs, Date.UTC(2014, 1, 26, 21, 40));
     assert.match(document.entries[0].exportSha256, /^[0-9a-f]{64}$/);
     out = '';
