@@ -362,6 +362,11 @@ export interface DeriveOptions {
    * computed and hold NaN. Every draw is still taken, so the others are unchanged bit for bit.
    */
   readonly needed?: ReadonlySet<ObservableKey>;
+  /**
+   * Steps [from, to) of the counterfactual that anyone reads; outside them it is left unspecified
+   * (only uptime and restarts, which carry state, are always complete).
+   */
+  readonly counterfactualSteps?: readonly [number, number];
 }
 
 /**
@@ -395,6 +400,8 @@ function deriveBoth(p: ServiceParams, d: Drivers, qd: Drivers | undefined, baseT
   let restarts = rng.int(0, 6);
   const q = qd ? createObservables(n, intoScratch ? borrowScratch(ScratchSlot.Counterfactual, observablesSize) : undefined) : undefined;
   const differs = qd ? markDifferingSteps(d, qd, n) : undefined;
+  const quietFrom = Math.max(0, options.counterfactualSteps?.[0] ?? 0);
+  const quietTo = Math.min(n, options.counterfactualSteps?.[1] ?? n);
   let quietUptimeS = uptimeS;
   let quietRestarts = restarts;
   const r = new Float64Array(DRAWS_PER_STEP);
@@ -421,7 +428,7 @@ function deriveBoth(p: ServiceParams, d: Drivers, qd: Drivers | undefined, baseT
     o.uptime[i] = uptimeS;
     o.restarts[i] = restarts;
     if (q && qd && differs) {
-      if (differs[i] === 1) writeStep(p, qd, i, noise, r, q, needs);
+      if (differs[i] === 1 && i >= quietFrom && i < quietTo) writeStep(p, qd, i, noise, r, q, needs);
       if ((qd.restart[i] as number) > 0) {
         quietUptimeS = stepS * restartDraw;
         quietRestarts += 1;
@@ -432,14 +439,14 @@ function deriveBoth(p: ServiceParams, d: Drivers, qd: Drivers | undefined, baseT
       q.restarts[i] = quietRestarts;
     }
   }
-  if (q && differs) copyUnchangedSteps(o, q, differs);
+  if (q && differs) copyUnchangedSteps(o, q, differs, quietFrom, quietTo);
   return q ? { faulted: o, counterfactual: q } : { faulted: o };
 }
 
-/** Copies every observable but uptime and restarts from `from` to `to` over the runs of steps where `differs` is 0. */
-function copyUnchangedSteps(from: Observables, to: Observables, differs: Uint8Array): void {
-  const n = differs.length;
-  for (let a = 0; a < n;) {
+/** Copies every observable but uptime and restarts from `from` to `to` over the runs of steps in [first, end) where `differs` is 0. */
+function copyUnchangedSteps(from: Observables, to: Observables, differs: Uint8Array, first: number, end: number): void {
+  const n = end;
+  for (let a = first; a < n;) {
     if (differs[a] === 1) {
       a += 1;
       continue;

@@ -27,6 +27,11 @@ export interface RenderRequest {
    * rendered series reads are then left out (NaN).
    */
   readonly reuseBuffers?: boolean;
+  /**
+   * With reuseBuffers: the only steps [from, to) of the counterfactual anyone reads (an
+   * example's window); it is left unspecified elsewhere.
+   */
+  readonly counterfactualSteps?: readonly [number, number];
 }
 
 /** Observables with and without the faults, drawn from the same noise (see measureFaultEvidence). */
@@ -183,7 +188,7 @@ export function renderSystem(spec: SystemSpec, request: RenderRequest, rng: Rand
   // The counterfactual sees the same noise as the faulted run, so only the fault differs between the two.
   // With reused buffers the result is read at once, by the series rendered here and by whoever
   // measures their evidence: observables no series renders from are not needed.
-  const deriveOptions = reuse ? { intoScratch: true, needed: findNeededObservables(spec) } : {};
+  const deriveOptions = reuse ? { intoScratch: true, needed: findNeededObservables(spec), counterfactualSteps: request.counterfactualSteps } : {};
   const both = quietDrivers ? deriveObservablesWithCounterfactual(spec.params, drivers, quietDrivers, baseTraffic, rng, spec.stepMs, deriveOptions) : undefined;
   const o = both ? both.faulted : deriveObservables(spec.params, drivers, baseTraffic, rng, spec.stepMs, deriveOptions);
   const quiet = both?.counterfactual;

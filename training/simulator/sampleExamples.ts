@@ -56,6 +56,19 @@ interface ResolvedDifficulty {
 /** Draws per fault example before the last one is kept whatever its evidence (rare: see README). */
 const MAX_EVIDENCE_ATTEMPTS = 12;
 
+const resolvedCache = new WeakMap<Difficulty, ResolvedDifficulty>();
+let resolvedDefault: ResolvedDifficulty | undefined;
+/** resolveDifficulty, once per options object (it is resolved again for every example otherwise). */
+function resolveDifficultyCached(d: Difficulty | undefined): ResolvedDifficulty {
+  if (d === undefined) return (resolvedDefault ??= resolveDifficulty(undefined));
+  let resolved = resolvedCache.get(d);
+  if (!resolved) {
+    resolved = resolveDifficulty(d);
+    resolvedCache.set(d, resolved);
+  }
+  return resolved;
+}
+
 function resolveDifficulty(d: Difficulty | undefined): ResolvedDifficulty {
   const resolved = {
     keyMetricDropProbability: d?.keyMetricDropProbability ?? 0.15,
@@ -180,8 +193,8 @@ function chooseKept(spec: SystemSpec, label: SimClass, rng: Random, difficulty: 
  * the noise of every exported metric (evidence below difficulty.minFaultEvidence) is drawn again
  * from the same generator, up to MAX_EVIDENCE_ATTEMPTS times; the example records its evidence.
  */
-export function sampleOneExample(spec: SystemSpec, label: SimClass, rng: Random, windowRange: readonly [number, number], baselineRange: readonly [number, number], difficulty: Difficulty = {}): TrainingExample {
-  const knobs = resolveDifficulty(difficulty);
+export function sampleOneExample(spec: SystemSpec, label: SimClass, rng: Random, windowRange: readonly [number, number], baselineRange: readonly [number, number], difficulty?: Difficulty): TrainingExample {
+  const knobs = resolveDifficultyCached(difficulty);
   const isChecked = label !== 'normal' && knobs.minFaultEvidence > 0;
   for (let attempt = 1; ; attempt += 1) {
     const example = drawExample(spec, label, rng, windowRange, baselineRange, knobs, isChecked);
@@ -203,6 +216,7 @@ function drawExample(spec: SystemSpec, label: SimClass, rng: Random, windowRange
   const system = renderSystem({ ...spec, series: kept }, {
     lengthSteps: layout.lengthSteps, startMs, faults: layout.fault ? [layout.fault] : [],
     benignPerStep: rng.uniform(0, 1 / 100), benignEvents, keepCounterfactual: isChecked, reuseBuffers: true,
+    counterfactualSteps: [layout.windowStart, layout.windowStart + windowSteps],
   }, rng);
   const metrics: MetricWindow[] = [];
   const truth: MetricTruth[] = [];
