@@ -62,6 +62,11 @@ export interface CompetitionOptions {
    * kind look less like this window than their other label does. Infinity = never.
    */
   readonly overrideMargin: number;
+  /**
+   * Combined similarity (sd units) at which the nearest team label wins even against a confident
+   * head, if it also leads by acceptMargin: a near-repeat of a labelled incident. Infinity = never.
+   */
+  readonly recurrenceSimilarity: number;
   /** The library may overrule the head only when the head's top calibrated probability is ≤ this. */
   readonly headConfidenceCap: number;
   /** Share of probability mass the library takes when it wins, 0..1. */
@@ -80,6 +85,7 @@ export const DEFAULT_COMPETITION_OPTIONS: CompetitionOptions = {
   acceptSimilarity: 1,
   acceptMargin: 0,
   overrideMargin: Number.POSITIVE_INFINITY,
+  recurrenceSimilarity: Number.POSITIVE_INFINITY,
   headConfidenceCap: 0.9,
   maxWeight: 0.9,
   temperature: 0.25,
@@ -194,14 +200,16 @@ export function rankLibraryClasses(classes: readonly ClassSimilarity[], options:
 /**
  * The competition's gate: may the nearest library class `label` (combined similarity `score`,
  * `leadOverBuiltIn` ahead of the built-in-named classes) overrule a head whose top calibrated
- * probability is `headTop`? Only a team label; then either an unsure head, a near enough match and
- * a lead ≥ acceptMargin, or a lead ≥ overrideMargin over the team's incidents of built-in kinds.
+ * probability is `headTop`? Only a team label; then a lead ≥ overrideMargin over the team's
+ * incidents of built-in kinds, or a lead ≥ acceptMargin with either a near-repeat (score ≥
+ * recurrenceSimilarity) or an unsure head and a near enough match (score ≥ acceptSimilarity).
  */
 export function isLibraryWinAccepted(label: string, score: number, leadOverBuiltIn: number, headTop: number, options: CompetitionOptions): boolean {
   if (isBuiltInLabel(label) || !(score > Number.NEGATIVE_INFINITY)) return false;
   // The override needs built-in-named classes to lead over (a finite lead); without them only the plain gate applies.
   if (Number.isFinite(leadOverBuiltIn) && leadOverBuiltIn >= options.overrideMargin) return true;
-  return headTop <= options.headConfidenceCap && score >= options.acceptSimilarity && leadOverBuiltIn >= options.acceptMargin;
+  if (leadOverBuiltIn < options.acceptMargin) return false;
+  return score >= options.recurrenceSimilarity || (headTop <= options.headConfidenceCap && score >= options.acceptSimilarity);
 }
 
 function isBuiltInLabel(label: string): boolean {
@@ -211,5 +219,5 @@ function isBuiltInLabel(label: string): boolean {
 function checkOptions(options: CompetitionOptions): void {
   if (!(options.maxWeight >= 0 && options.maxWeight <= 1)) throw new Error(`expected maxWeight in 0..1, got ${options.maxWeight}`);
   if (!(options.temperature > 0)) throw new Error(`expected temperature > 0, got ${options.temperature}`);
-  if ([options.acceptSimilarity, options.acceptMargin, options.overrideMargin, options.headConfidenceCap].some(Number.isNaN)) throw new Error('expected numeric acceptSimilarity, acceptMargin, overrideMargin and headConfidenceCap, got NaN');
+  if ([options.acceptSimilarity, options.acceptMargin, options.overrideMargin, options.recurrenceSimilarity, options.headConfidenceCap].some(Number.isNaN)) throw new Error('expected numeric similarity thresholds, margins and head-confidence cap, got NaN');
 }

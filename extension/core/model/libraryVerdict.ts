@@ -51,6 +51,8 @@ export interface BlendedVerdict {
 }
 
 /**
+ * The earlier, distance-gated blend; matchLibrary now uses competeVerdict (librarySignatureVerdict.ts),
+ * and training/evaluateFewShot.ts keeps this one as the baseline it is compared with.
  * Blend the bundled head's calibrated probabilities with the library's prototype scores:
  * p(c) = (1 − w)·base(c) + w·library(c), with w from the distance gate (see BlendOptions). A library
  * label equal to a built-in class adds to that class. Ties keep the first class in insertion order

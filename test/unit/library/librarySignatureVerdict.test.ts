@@ -4,7 +4,7 @@ import { competeVerdict, computeClassSimilarities, type CompetitionOptions } fro
 // Unit scale (mean 0, sd 1), signature weight 0.5: the combined similarity is (sig + emb)/2.
 const options: CompetitionOptions = {
   scale: { signatureWeight: 0.5, signatureMean: 0, signatureSd: 1, embeddingMean: 0, embeddingSd: 1 }, classAggregate: 'mean',
-  acceptSimilarity: 0.6, acceptMargin: 0, overrideMargin: Number.POSITIVE_INFINITY, headConfidenceCap: 0.9, maxWeight: 0.9, temperature: 0.25,
+  acceptSimilarity: 0.6, acceptMargin: 0, overrideMargin: Number.POSITIVE_INFINITY, recurrenceSimilarity: Number.POSITIVE_INFINITY, headConfidenceCap: 0.9, maxWeight: 0.9, temperature: 0.25,
 };
 const unsureHead = { normal: 0.2, cpu_saturation: 0.7, memory_leak: 0.1 };
 
@@ -106,6 +106,17 @@ describe('competeVerdict', () => {
     assert.equal(competeVerdict(confidentHead, classes, { ...options, overrideMargin: 0.9 }).className, 'cpu_steal');
     // Without built-in-named classes in the library there is no lead to judge: the plain gate holds.
     assert.equal(competeVerdict(confidentHead, [classes[0]], { ...options, overrideMargin: 0 }).className, 'cpu_saturation');
+  });
+
+  it('lets a near-repeat of a team incident win against a confident head from the recurrence similarity on', () => {
+    const confidentHead = { normal: 0.01, cpu_saturation: 0.98, memory_leak: 0.01 };
+    const repeat = [{ label: 'basket_cpu_starvation', exampleCount: 1, signatureCosine: 3, embeddingCosine: 3 }];
+    assert.equal(competeVerdict(confidentHead, repeat, options).className, 'cpu_saturation');
+    assert.equal(competeVerdict(confidentHead, repeat, { ...options, recurrenceSimilarity: 3.1 }).className, 'cpu_saturation');
+    const v = competeVerdict(confidentHead, repeat, { ...options, recurrenceSimilarity: 3 });
+    assert.equal(v.className, 'basket_cpu_starvation');
+    // One library class takes all the library's share: 0.9.
+    assert.ok(Math.abs(v.probability - 0.9) < 1e-12);
   });
 
   it('does not claim a window below the acceptance similarity, and an empty library changes nothing', () => {

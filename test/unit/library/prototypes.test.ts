@@ -125,7 +125,7 @@ describe('matchLibrary', () => {
       makeEntry({ id: 'b', label: 'pool_leak', embedding: [0, 0, 1], modelVersion: 'v1' }),
     ];
     // Embedding only (no query metrics): z = (cos − 0)/1, accepted from 0.5.
-    const options = { scale: { signatureWeight: 0.5, signatureMean: 0, signatureSd: 1, embeddingMean: 0, embeddingSd: 1 }, classAggregate: 'mean' as const, acceptSimilarity: 0.5, acceptMargin: 0, overrideMargin: Number.POSITIVE_INFINITY, headConfidenceCap: 0.9, maxWeight: 0.9, temperature: 0.25 };
+    const options = { scale: { signatureWeight: 0.5, signatureMean: 0, signatureSd: 1, embeddingMean: 0, embeddingSd: 1 }, classAggregate: 'mean' as const, acceptSimilarity: 0.5, acceptMargin: 0, overrideMargin: Number.POSITIVE_INFINITY, recurrenceSimilarity: Number.POSITIVE_INFINITY, headConfidenceCap: 0.9, maxWeight: 0.9, temperature: 0.25 };
     const match = matchLibrary({ normal: 0.6, cpu_saturation: 0.4 }, [1, 0.01, 0], entries, 'v2', undefined, options);
     assert.equal(match.usedEntryCount, 1);
     assert.equal(match.staleEntryCount, 1);
