@@ -194,15 +194,44 @@ function chooseKept(spec: SystemSpec, label: SimClass, rng: Random, difficulty: 
  * from the same generator, up to MAX_EVIDENCE_ATTEMPTS times; the example records its evidence.
  */
 export function sampleOneExample(spec: SystemSpec, label: SimClass, rng: Random, windowRange: readonly [number, number], baselineRange: readonly [number, number], difficulty?: Difficulty): TrainingExample {
-  const knobs = resolveDifficultyCached(difficulty);
+  return sampleWithSlab(spec, label, rng, windowRange, baselineRange, resolveDifficultyCached(difficulty), new ValueSlab());
+}
+
+function sampleWithSlab(spec: SystemSpec, label: SimClass, rng: Random, windowRange: readonly [number, number], baselineRange: readonly [number, number], knobs: ResolvedDifficulty, slab: ValueSlab): TrainingExample {
   const isChecked = label !== 'normal' && knobs.minFaultEvidence > 0;
   for (let attempt = 1; ; attempt += 1) {
-    const example = drawExample(spec, label, rng, windowRange, baselineRange, knobs, isChecked);
-    if (!isChecked || (example.faultEvidence as number) >= knobs.minFaultEvidence || attempt >= MAX_EVIDENCE_ATTEMPTS) return example;
+    // A draw the evidence rejects is not assembled (assembling takes no random draws).
+    const example = drawExample(spec, label, rng, windowRange, baselineRange, knobs, isChecked, attempt >= MAX_EVIDENCE_ATTEMPTS, slab);
+    if (example) return example;
   }
 }
 
-function drawExample(spec: SystemSpec, label: SimClass, rng: Random, windowRange: readonly [number, number], baselineRange: readonly [number, number], knobs: ResolvedDifficulty, isChecked: boolean): TrainingExample {
+/**
+ * Hands out views of large shared buffers for the examples' baselines and windows: one
+ * allocation per ~0.5 MB of values instead of one per example, which the collector then has to
+ * track. Views keep their slab alive, which is what holding the examples means anyway.
+ */
+class ValueSlab {
+  private buffer = new Float64Array(0);
+  private used = 0;
+
+  take(length: number): Float64Array {
+    if (this.used + length > this.buffer.length) {
+      this.buffer = new Float64Array(Math.max(length, SLAB_VALUES));
+      this.used = 0;
+    }
+    const view = this.buffer.subarray(this.used, this.used + length);
+    this.used += length;
+    return view;
+  }
+}
+const SLAB_VALUES = 65_536;
+
+/**
+ * One draw of an example; undefined when the evidence check rejects it (isChecked, evidence below
+ * the minimum, and not the last attempt), as sampleOneExample has always decided.
+ */
+function drawExample(spec: SystemSpec, label: SimClass, rng: Random, windowRange: readonly [number, number], baselineRange: readonly [number, number], knobs: ResolvedDifficulty, isChecked: boolean, isLastAttempt: boolean, slab: ValueSlab): TrainingExample | undefined {
   const windowSteps = drawLength(rng, windowRange);
   const baselineSteps = Math.floor(Math.min(baselineRange[1], Math.max(baselineRange[0], rng.logUniform(baselineRange[0], baselineRange[1] + 1))));
   const layout = planLayout(spec, label, rng, windowSteps, baselineSteps, knobs.weakFaultShare);
@@ -218,24 +247,21 @@ function drawExample(spec: SystemSpec, label: SimClass, rng: Random, windowRange
     benignPerStep: rng.uniform(0, 1 / 100), benignEvents, keepCounterfactual: isChecked, reuseBuffers: true,
     counterfactualSteps: [layout.windowStart, layout.windowStart + windowSteps],
   }, rng);
-  const metrics: MetricWindow[] = [];
-  const truth: MetricTruth[] = [];
-  // Every baseline and window of the example lives in one buffer (views, same values as slices):
-  // tens of thousands of small typed arrays, each with its own store, made the collector the
-  // largest cost of a long sampling run.
   const baselineEnd = layout.baselineStart + baselineSteps;
   const windowEnd = layout.windowStart + windowSteps;
   const sources = system.series.map((s) => (s.kind === 'counter' ? convertCounterToRates(s.values, system.stepMs) : s.values));
+  // Evidence first, on the baselines in place (the same values the example would copy).
+  const faultEvidence = system.observables
+    ? measureFaultEvidence(kept.map((spec, k) => ({ spec, baseline: (sources[k] as Float64Array).subarray(layout.baselineStart, baselineEnd) })), system.observables, layout.windowStart, windowSteps)
+    : undefined;
+  if (isChecked && !isLastAttempt && !((faultEvidence as number) >= knobs.minFaultEvidence)) return undefined;
+  const metrics: MetricWindow[] = [];
+  const truth: MetricTruth[] = [];
   const rangeLength = (length: number, start: number, end: number): number => Math.max(0, Math.min(end, length) - start);
-  let total = 0;
-  for (const values of sources) total += rangeLength(values.length, layout.baselineStart, baselineEnd) + rangeLength(values.length, layout.windowStart, windowEnd);
-  const store = new Float64Array(total);
-  let used = 0;
   const copyRange = (values: Float64Array, start: number, end: number): Float64Array => {
     const length = rangeLength(values.length, start, end);
-    const view = store.subarray(used, used + length);
+    const view = slab.take(length);
     for (let i = 0; i < length; i += 1) view[i] = values[start + i] as number;
-    used += length;
     return view;
   };
   system.series.forEach((s, k) => {
@@ -249,9 +275,6 @@ function drawExample(spec: SystemSpec, label: SimClass, rng: Random, windowRange
     });
     truth.push({ role: s.role ?? 'unknown', trueFamily: s.trueFamily, isCounter, name: s.name, unit: s.unit, labels: s.labels });
   });
-  const faultEvidence = system.observables
-    ? measureFaultEvidence(metrics.map((m, k) => ({ spec: kept[k] as SeriesSpec, baseline: m.baseline })), system.observables, layout.windowStart, windowSteps)
-    : undefined;
   return { label, systemId: spec.id, metrics, truth, stepMs: spec.stepMs, namingStyle: spec.namingStyle, ...(faultEvidence !== undefined ? { faultEvidence } : {}) };
 }
 
@@ -269,7 +292,8 @@ export function sampleExamples(options: SampleOptions): TrainingExample[] {
   if (!Number.isInteger(options.count) || options.count < 0) throw new Error(`sampleExamples: expected count as a non-negative integer, got ${options.count}`);
   validateRange('windowSteps', windowRange);
   validateRange('baselineSteps', baselineRange);
-  resolveDifficulty(options.difficulty);
+  const knobs = resolveDifficulty(options.difficulty);
+  const slab = new ValueSlab();
   const specs = new Map<number, SystemSpec>();
   const examples: TrainingExample[] = [];
   for (let i = 0; i < options.count; i += 1) {
@@ -280,7 +304,7 @@ export function sampleExamples(options: SampleOptions): TrainingExample[] {
       spec = buildSystemSpec(systemSeed);
       specs.set(systemSeed, spec);
     }
-    examples.push(sampleOneExample(spec, classes[i % classes.length] as SimClass, rng, windowRange, baselineRange, options.difficulty));
+    examples.push(sampleWithSlab(spec, classes[i % classes.length] as SimClass, rng, windowRange, baselineRange, knobs, slab));
   }
   return examples;
 }
