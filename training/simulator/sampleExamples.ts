@@ -261,7 +261,7 @@ function drawExample(spec: SystemSpec, label: SimClass, rng: Random, windowRange
   const copyRange = (values: Float64Array, start: number, end: number): Float64Array => {
     const length = rangeLength(values.length, start, end);
     const view = slab.take(length);
-    for (let i = 0; i < length; i += 1) view[i] = values[start + i] as number;
+    view.set(values.subarray(start, start + length));
     return view;
   };
   system.series.forEach((s, k) => {
