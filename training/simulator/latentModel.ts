@@ -78,7 +78,7 @@ export function borrowScratch(slot: ScratchSlot, length: number): Float64Array {
   return buffer;
 }
 /** Scratch users: each a distinct buffer. */
-export const ScratchSlot = { Drivers: 0, QuietDrivers: 1, Traffic: 2, Noise: 3, Faulted: 4, Counterfactual: 5, Series: 6, Times: 7 } as const;
+export const ScratchSlot = { Drivers: 0, QuietDrivers: 1, Traffic: 2, Noise: 3, Faulted: 4, Counterfactual: 5, Series: 6, Times: 7, Uniforms: 8 } as const;
 export type ScratchSlot = (typeof ScratchSlot)[keyof typeof ScratchSlot];
 const scratchBuffers: Array<Float64Array | undefined> = [];
 let differsScratch = new Uint8Array(1024);

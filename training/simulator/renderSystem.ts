@@ -134,11 +134,22 @@ function accumulate(s: SeriesSpec, values: Float64Array, o: Observables, rng: Ra
   const resetsOnRestart = s.role.source !== 'restarts';
   const resetProbability = s.resetProbability;
   let total = isInteger ? Math.floor(rng.logUniform(1, 1e7)) : rng.logUniform(1, 1e6);
+  // The draws of every step (dither, then reset chance unless a restart already resets) are known
+  // in number before any is drawn, so they are taken in one block, in the same order.
+  let drawCount = 0;
+  for (let i = 0; i < n; i += 1) {
+    if (isInteger) drawCount += 1;
+    const isRestart = i > 0 && (restarts[i] as number) > (restarts[i - 1] as number);
+    if (!(isRestart && resetsOnRestart)) drawCount += 1;
+  }
+  const u = borrowScratch(ScratchSlot.Uniforms, drawCount);
+  rng.fillUniform(u, 0, drawCount);
+  let next = 0;
   for (let i = 0; i < n; i += 1) {
     let increment = (values[i] as number) * stepS;
-    if (isInteger) increment = Math.floor(increment + rng.next());
+    if (isInteger) increment = Math.floor(increment + (u[next++] as number));
     const isRestart = i > 0 && (restarts[i] as number) > (restarts[i - 1] as number);
-    if ((isRestart && resetsOnRestart) || rng.chance(resetProbability)) total = 0;
+    if ((isRestart && resetsOnRestart) || (u[next++] as number) < resetProbability) total = 0;
     total += increment;
     values[i] = total;
   }
@@ -152,10 +163,10 @@ function findNeededObservables(spec: SystemSpec): ReadonlySet<ObservableKey> {
 }
 
 /** exp(tailWeight · log tail) per step, computed once per weight (quantile copies of many roles share a weight). */
-function findTailFactor(cache: Map<number, Float64Array>, tailWeight: number, logTail: Float64Array): Float64Array {
+function findTailFactor(cache: Map<number, Float64Array>, tailWeight: number, logTail: Float64Array, carve: () => Float64Array): Float64Array {
   let factor = cache.get(tailWeight);
   if (!factor) {
-    factor = new Float64Array(logTail.length);
+    factor = carve();
     for (let i = 0; i < logTail.length; i += 1) factor[i] = Math.exp(tailWeight * (logTail[i] as number));
     cache.set(tailWeight, factor);
   }
@@ -195,14 +206,16 @@ export function renderSystem(spec: SystemSpec, request: RenderRequest, rng: Rand
   // Every per-step array of the series comes from one allocation: each typed array of this size
   // otherwise gets its own off-heap store, and making and freeing those cost more than filling them.
   const roleCount = new Set(spec.series.map((s) => s.role.key)).size;
-  const arenaSize = n * (spec.series.length + roleCount + 2);
+  const tailWeightCount = new Set(spec.series.filter((s) => s.tailWeight > 0).map((s) => s.tailWeight)).size;
+  const arenaSize = n * (spec.series.length + roleCount + tailWeightCount + 2);
   const arena = reuse ? borrowScratch(ScratchSlot.Series, arenaSize) : new Float64Array(arenaSize);
   let arenaUsed = 0;
   const carve = (): Float64Array => arena.subarray(arenaUsed, (arenaUsed += n));
   const walk = carve();
   const logTail = carve();
   const tail = o.tail;
-  for (let i = 0; i < n; i += 1) logTail[i] = Math.log(tail[i] as number);
+  // Only quantile copies (tail weight > 0) read the tail.
+  if (tailWeightCount > 0) for (let i = 0; i < n; i += 1) logTail[i] = Math.log(tail[i] as number);
   const sharedNoise = new Map<string, Float64Array>();
   const quanta = new Map<string, number>();
   const tailFactors = new Map<number, Float64Array>();
@@ -214,7 +227,7 @@ export function renderSystem(spec: SystemSpec, request: RenderRequest, rng: Rand
       sharedNoise.set(s.role.key, shared);
     }
     const rendered = carve();
-    renderValues(s, o, rng, spec.stepMs, spec.params.burstProbability, shared, s.tailWeight > 0 ? findTailFactor(tailFactors, s.tailWeight, logTail) : undefined, rendered, walk);
+    renderValues(s, o, rng, spec.stepMs, spec.params.burstProbability, shared, s.tailWeight > 0 ? findTailFactor(tailFactors, s.tailWeight, logTail, carve) : undefined, rendered, walk);
     if (s.kind === 'gauge' && s.significantDigits > 0) {
       // The first copy of a role fixes the quantum for all its copies (same exporter, same format).
       let quantum = quanta.get(s.role.key);
