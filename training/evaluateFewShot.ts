@@ -14,8 +14,11 @@
  *   verdict on every query; accuracy on the held-out queries, macro-F1 on the built-in queries with
  *   and without the library (mean over episodes and the worst episode).
  * Rules: `prototype` = the earlier distance-gated blend (blendVerdict); `compete` = competeVerdict
- * with the combined signature + embedding similarity, and its signature-only and embedding-only
- * ablations, each calibrated; `compete (product defaults)` = DEFAULT_COMPETITION_OPTIONS as shipped.
+ * with the combined signature + embedding similarity (class means; nearest entries; with the
+ * override and recurrence tiers), and its signature-only and embedding-only ablations, each
+ * calibrated on the table's own calibration half; `compete (product defaults)` =
+ * DEFAULT_COMPETITION_OPTIONS as shipped. The run ends with the setting the pooled same-system
+ * calibration halves suggest as product defaults. Same systems: 48 services (24 per half).
  */
 import { CLASSES, type MetricWindow } from '../extension/core/model/types';
 import { computePrototypes, scorePrototypes, type EmbeddingNormalization } from '../extension/core/model/prototypes';
@@ -429,11 +432,13 @@ export async function runFewShotEvaluation(argv: readonly string[]): Promise<voi
   const same = await buildSameSystemGroups(embedder, seed, 48, false);
   const [sameCalibration, sameReport] = splitInHalves(same);
   writeTable('Same systems (each team labels and meets incidents of its own service)', withoutBuiltInSupport(sameCalibration), withoutBuiltInSupport(sameReport), HELD_OUT_CLASSES, args);
-  const product = writeTable('Same systems, library also holds k of the team\'s incidents per built-in class', sameCalibration, sameReport, HELD_OUT_CLASSES, args);
+  writeTable('Same systems, library also holds k of the team\'s incidents per built-in class', sameCalibration, sameReport, HELD_OUT_CLASSES, args);
   const [keyCalibration, keyReport] = splitInHalves(await buildSameSystemGroups(embedder, seed, 48, true));
   writeTable('Same systems exporting a key metric of both held-out types, library also holds k built-in incidents per class', keyCalibration, keyReport, HELD_OUT_CLASSES, args);
-  const chosen = product.get('compete, combined, with overrides');
-  if (chosen !== undefined) process.stdout.write(`\nproduct defaults suggested by the calibration half of "library also holds k built-in incidents": ${describeCompetition(chosen)}\n`);
+  // Product defaults: one setting for teams whose library holds only their own labels and teams whose
+  // library also holds their incidents of built-in kinds — calibrated on both calibration halves pooled.
+  const joint = calibrateCompetition([...withoutBuiltInSupport(sameCalibration), ...sameCalibration], HELD_OUT_CLASSES, [0.25, 0.5, 0.75], args.budget, ['mean', 'max'], [Number.POSITIVE_INFINITY, 0.5, 1, 1.5, 2, 3], true);
+  process.stdout.write(`\nproduct defaults suggested by the pooled same-system calibration halves (with and without built-in incidents in the library): ${joint === undefined ? 'none within budget' : `${describeCompetition(joint.options)} (calibration held-out accuracy ${format(joint.accuracy)})`}\n`);
   await reportStorageEffect(embedder, cross.rawSupport, cross.groups[0].support);
   await embedder.release();
   process.stdout.write(`\n(${((Date.now() - startedMs) / 1000).toFixed(1)} s)\n`);
