@@ -78,7 +78,7 @@ export function borrowScratch(slot: ScratchSlot, length: number): Float64Array {
   return buffer;
 }
 /** Scratch users: each a distinct buffer. */
-export const ScratchSlot = { Drivers: 0, QuietDrivers: 1, Traffic: 2, Noise: 3, Faulted: 4, Counterfactual: 5, Series: 6, Times: 7, Uniforms: 8 } as const;
+export const ScratchSlot = { Drivers: 0, QuietDrivers: 1, Traffic: 2, Noise: 3, Faulted: 4, Counterfactual: 5, Series: 6, Times: 7, Uniforms: 8, Draws: 9 } as const;
 export type ScratchSlot = (typeof ScratchSlot)[keyof typeof ScratchSlot];
 const scratchBuffers: Array<Float64Array | undefined> = [];
 let differsScratch = new Uint8Array(1024);
@@ -189,30 +189,31 @@ const DRAWS_PER_STEP = 13;
  * Takes one step's random draws: 13 uniforms in one call (plus one when the 1 % stray-drops
  * chance hits), turned into normals etc. exactly as the generator's own methods turn them. The
  * count and order never depend on the drivers, so a counterfactual without the fault sees exactly
- * the same noise, and the draws can be taken once and used for both. `u` is scratch (13 values).
+ * the same noise, and the draws can be taken once and used for both. `u` is scratch (13 values);
+ * the step's values go to r[b..b + 13).
  */
-function drawStep(rng: Random, u: Float64Array, r: Float64Array, needs: StepNeeds): void {
+function drawStep(rng: Random, u: Float64Array, r: Float64Array, b: number, needs: StepNeeds): void {
   rng.fillUniform(u, 0, DRAWS_PER_STEP);
   // Every uniform is drawn; a normal is looked up only when an observable that is read uses it.
-  r[0] = normalFromUniform(u[0] as number); // steal jitter
-  r[1] = u[1] as number; // usable share of capacity
-  r[2] = u[2] as number; // iowait spread
-  r[3] = u[3] as number; // pool wait jitter, drawn always
-  r[4] = needs.errors ? normalFromUniform(u[4] as number) : 0; // error ratio noise
-  r[5] = u[5] as number; // time since a restart
-  r[6] = needs.iowait ? normalFromUniform(u[6] as number) : 0; // load noise
-  r[7] = u[7] as number; // throttle spread
-  r[8] = needs.retrans ? normalFromUniform(u[8] as number) : 0; // retransmit noise
-  r[9] = needs.drops ? normalFromUniform(u[9] as number) : 0; // drop noise
+  r[b] = normalFromUniform(u[0] as number); // steal jitter
+  r[b + 1] = u[1] as number; // usable share of capacity
+  r[b + 2] = u[2] as number; // iowait spread
+  r[b + 3] = u[3] as number; // pool wait jitter, drawn always
+  r[b + 4] = needs.errors ? normalFromUniform(u[4] as number) : 0; // error ratio noise
+  r[b + 5] = u[5] as number; // time since a restart
+  r[b + 6] = needs.iowait ? normalFromUniform(u[6] as number) : 0; // load noise
+  r[b + 7] = u[7] as number; // throttle spread
+  r[b + 8] = needs.retrans ? normalFromUniform(u[8] as number) : 0; // retransmit noise
+  r[b + 9] = needs.drops ? normalFromUniform(u[9] as number) : 0; // drop noise
   if ((u[10] as number) < 0.01) {
     // Stray drops: uniform(0, 3) takes the next draw, which shifts the last two by one.
-    r[10] = 0 + (3 - 0) * (u[11] as number);
-    r[11] = studentT2FromUniform(u[12] as number);
-    r[12] = rng.next() < 0.02 ? 1 : 0;
+    r[b + 10] = 0 + (3 - 0) * (u[11] as number);
+    r[b + 11] = studentT2FromUniform(u[12] as number);
+    r[b + 12] = rng.next() < 0.02 ? 1 : 0;
   } else {
-    r[10] = 0;
-    r[11] = studentT2FromUniform(u[11] as number); // latency tail
-    r[12] = (u[12] as number) < 0.02 ? 1 : 0; // stray pending connection
+    r[b + 10] = 0;
+    r[b + 11] = studentT2FromUniform(u[11] as number); // latency tail
+    r[b + 12] = (u[12] as number) < 0.02 ? 1 : 0; // stray pending connection
   }
 }
 
@@ -263,68 +264,123 @@ interface StepNoise {
   readonly slow: Float64Array;
 }
 
-/** Writes every observable except uptime and restarts (the only ones that carry state across steps) at step `i`. */
-function writeStep(p: ServiceParams, d: Drivers, i: number, noise: StepNoise, r: Float64Array, o: Observables, needs: StepNeeds): void {
-  const traffic = (noise.baseTraffic[i] as number) * (d.trafficScale[i] as number);
-  const loadRatio = traffic / p.requestRatePerS;
-  const mem = clamp(p.memBaseRatio * Math.exp(noise.mem[i] as number) + (d.memExtra[i] as number) + (d.memLeak[i] as number), 0.02, 0.995);
-  const gcPressure = Math.max(0, mem - 0.7) / 0.3;
-  const steal = clamp((d.steal[i] as number) + 0.004 * Math.abs(r[0] as number), 0, 0.9);
-  const demand = Math.max(0.003, ((p.cpuBase + p.cpuPerLoad * loadRatio) * Math.exp((noise.cpu[i] as number) + (noise.slow[i] as number)) + 0.25 * gcPressure * gcPressure) * (d.cpuScale[i] as number) + (d.cpuExtra[i] as number));
-  const capacity = 1 - steal;
-  const cpu = Math.min(demand, capacity * (0.97 + 0.025 * (r[1] as number)));
-  const rho = demand / capacity;
-  const diskBusy = clamp((p.diskBase + p.diskPerLoad * loadRatio) * Math.exp(noise.disk[i] as number) + (d.diskExtra[i] as number), 0.001, 0.999);
-  const diskFactor = 1 / Math.max(0.03, 1 - diskBusy);
-  const dependency = p.dependencyLatencyS * (1 + 0.2 * gcPressure) + (d.dependencyDelayS[i] as number);
-  const poolDemand = p.poolBaseRatio * loadRatio * (dependency / p.dependencyLatencyS) * (d.poolHold[i] as number);
-  const poolUse = Math.min(1, poolDemand);
-  const overflow = Math.max(0, poolDemand - 1);
-  const poolJitter = r[3] as number;
-  const poolWait = overflow > 0 ? dependency * overflow * 2 : 0.0005 * poolJitter;
-  const client = dependency + poolWait;
-  if (needs.iowait) {
-    const iowait = clamp(0.002 + 0.35 * diskBusy ** 4 * (0.8 + 0.4 * (r[2] as number)), 0, 1 - cpu);
-    o.iowait[i] = iowait;
-    o.idle[i] = Math.max(0, 1 - cpu - iowait - steal);
-    o.load[i] = p.cores * (cpu + iowait * 2 + Math.max(0, rho - 0.95) * 4) * (1 + 0.1 * (r[6] as number) ** 2);
-  }
-  if (needs.server) {
-    const cpuFactor = 1 + p.queueSensitivity * Math.max(0, rho - 0.6) ** 2 / Math.max(0.04, 1 - rho) + 3 * Math.max(0, rho - 1);
-    const ownWork = p.serverLatencyS * (1 - p.dependencyShare) * cpuFactor * (1 + p.persistenceShare * (diskFactor - 1) * 0.3) * (1 + 2 * steal);
-    const server = (ownWork + p.dependencyShare * client / Math.max(1e-9, p.dependencyLatencyS) * p.serverLatencyS) * (d.latencyScale[i] as number) * Math.exp(0.7 * (noise.slow[i] as number));
-    o.serverLatency[i] = server;
-    o.callerLatency[i] = server + 0.002 + (d.callerDelayS[i] as number);
-    o.inflight[i] = traffic * server;
-    if (needs.errors) {
-      // Timeouts only once requests run far past their usual time (and only in some systems).
-      const timeoutErrors = Math.min(0.5, p.timeoutSensitivity * Math.max(0, server / p.serverLatencyS - 8) + 0.3 * p.timeoutSensitivity * 10 * Math.min(1, overflow));
-      const errorRatio = clamp(p.errorBaseRatio * Math.exp(0.4 * (r[4] as number)) + (d.errorExtra[i] as number) + timeoutErrors + p.lossErrorShare * (d.lossFraction[i] as number), 0, 1);
-      o.errorRatio[i] = errorRatio;
-      o.successRatio[i] = 1 - errorRatio;
-      o.errorRate[i] = errorRatio * traffic;
+/**
+ * Writes every observable except uptime and restarts (the only ones that carry state across
+ * steps) at steps [from, to); step i's draws are r[13·i .. 13·i + 13). The arrays are taken out
+ * of their objects once, not at every step.
+ */
+function writeSteps(p: ServiceParams, d: Drivers, noise: StepNoise, r: Float64Array, o: Observables, needs: StepNeeds, from: number, to: number): void {
+  const dCallerDelayS = d.callerDelayS;
+  const dCpuExtra = d.cpuExtra;
+  const dCpuScale = d.cpuScale;
+  const dDependencyDelayS = d.dependencyDelayS;
+  const dDiskExtra = d.diskExtra;
+  const dErrorExtra = d.errorExtra;
+  const dLatencyScale = d.latencyScale;
+  const dLossFraction = d.lossFraction;
+  const dMemExtra = d.memExtra;
+  const dMemLeak = d.memLeak;
+  const dPoolHold = d.poolHold;
+  const dSteal = d.steal;
+  const dTailExtra = d.tailExtra;
+  const dTrafficScale = d.trafficScale;
+  const noiseBaseTraffic = noise.baseTraffic;
+  const noiseCpu = noise.cpu;
+  const noiseDisk = noise.disk;
+  const noiseMem = noise.mem;
+  const noiseSlow = noise.slow;
+  const oCallerLatency = o.callerLatency;
+  const oClientLatency = o.clientLatency;
+  const oCpu = o.cpu;
+  const oDiskBusy = o.diskBusy;
+  const oDiskBytes = o.diskBytes;
+  const oDiskLatency = o.diskLatency;
+  const oDiskQueue = o.diskQueue;
+  const oDrops = o.drops;
+  const oErrorRate = o.errorRate;
+  const oErrorRatio = o.errorRatio;
+  const oGc = o.gc;
+  const oIdle = o.idle;
+  const oInflight = o.inflight;
+  const oIowait = o.iowait;
+  const oLoad = o.load;
+  const oMem = o.mem;
+  const oMemAvailable = o.memAvailable;
+  const oNetBytes = o.netBytes;
+  const oPoolPending = o.poolPending;
+  const oPoolUse = o.poolUse;
+  const oPoolWait = o.poolWait;
+  const oRetrans = o.retrans;
+  const oServerLatency = o.serverLatency;
+  const oSteal = o.steal;
+  const oSuccessRatio = o.successRatio;
+  const oTail = o.tail;
+  const oThreads = o.threads;
+  const oThrottle = o.throttle;
+  const oTraffic = o.traffic;
+  for (let i = from; i < to; i += 1) {
+    const b = DRAWS_PER_STEP * i;
+    const traffic = (noiseBaseTraffic[i] as number) * (dTrafficScale[i] as number);
+    const loadRatio = traffic / p.requestRatePerS;
+    const mem = clamp(p.memBaseRatio * Math.exp(noiseMem[i] as number) + (dMemExtra[i] as number) + (dMemLeak[i] as number), 0.02, 0.995);
+    const gcPressure = Math.max(0, mem - 0.7) / 0.3;
+    const steal = clamp((dSteal[i] as number) + 0.004 * Math.abs(r[b] as number), 0, 0.9);
+    const demand = Math.max(0.003, ((p.cpuBase + p.cpuPerLoad * loadRatio) * Math.exp((noiseCpu[i] as number) + (noiseSlow[i] as number)) + 0.25 * gcPressure * gcPressure) * (dCpuScale[i] as number) + (dCpuExtra[i] as number));
+    const capacity = 1 - steal;
+    const cpu = Math.min(demand, capacity * (0.97 + 0.025 * (r[b + 1] as number)));
+    const rho = demand / capacity;
+    const diskBusy = clamp((p.diskBase + p.diskPerLoad * loadRatio) * Math.exp(noiseDisk[i] as number) + (dDiskExtra[i] as number), 0.001, 0.999);
+    const diskFactor = 1 / Math.max(0.03, 1 - diskBusy);
+    const dependency = p.dependencyLatencyS * (1 + 0.2 * gcPressure) + (dDependencyDelayS[i] as number);
+    const poolDemand = p.poolBaseRatio * loadRatio * (dependency / p.dependencyLatencyS) * (dPoolHold[i] as number);
+    const poolUse = Math.min(1, poolDemand);
+    const overflow = Math.max(0, poolDemand - 1);
+    const poolJitter = r[b + 3] as number;
+    const poolWait = overflow > 0 ? dependency * overflow * 2 : 0.0005 * poolJitter;
+    const client = dependency + poolWait;
+    if (needs.iowait) {
+      const iowait = clamp(0.002 + 0.35 * diskBusy ** 4 * (0.8 + 0.4 * (r[b + 2] as number)), 0, 1 - cpu);
+      oIowait[i] = iowait;
+      oIdle[i] = Math.max(0, 1 - cpu - iowait - steal);
+      oLoad[i] = p.cores * (cpu + iowait * 2 + Math.max(0, rho - 0.95) * 4) * (1 + 0.1 * (r[b + 6] as number) ** 2);
     }
+    if (needs.server) {
+      const cpuFactor = 1 + p.queueSensitivity * Math.max(0, rho - 0.6) ** 2 / Math.max(0.04, 1 - rho) + 3 * Math.max(0, rho - 1);
+      const ownWork = p.serverLatencyS * (1 - p.dependencyShare) * cpuFactor * (1 + p.persistenceShare * (diskFactor - 1) * 0.3) * (1 + 2 * steal);
+      const server = (ownWork + p.dependencyShare * client / Math.max(1e-9, p.dependencyLatencyS) * p.serverLatencyS) * (dLatencyScale[i] as number) * Math.exp(0.7 * (noiseSlow[i] as number));
+      oServerLatency[i] = server;
+      oCallerLatency[i] = server + 0.002 + (dCallerDelayS[i] as number);
+      oInflight[i] = traffic * server;
+      if (needs.errors) {
+        // Timeouts only once requests run far past their usual time (and only in some systems).
+        const timeoutErrors = Math.min(0.5, p.timeoutSensitivity * Math.max(0, server / p.serverLatencyS - 8) + 0.3 * p.timeoutSensitivity * 10 * Math.min(1, overflow));
+        const errorRatio = clamp(p.errorBaseRatio * Math.exp(0.4 * (r[b + 4] as number)) + (dErrorExtra[i] as number) + timeoutErrors + p.lossErrorShare * (dLossFraction[i] as number), 0, 1);
+        oErrorRatio[i] = errorRatio;
+        oSuccessRatio[i] = 1 - errorRatio;
+        oErrorRate[i] = errorRatio * traffic;
+      }
+    }
+    oTraffic[i] = traffic;
+    oCpu[i] = cpu;
+    oSteal[i] = steal;
+    oThrottle[i] = clamp(Math.max(0, rho - 0.85) * 3, 0, 1) * (0.8 + 0.2 * (r[b + 7] as number));
+    oMem[i] = mem;
+    oMemAvailable[i] = 1 - mem;
+    oGc[i] = (0.05 + 0.2 * loadRatio) * (1 + 6 * gcPressure * gcPressure);
+    oDiskBusy[i] = diskBusy;
+    oDiskQueue[i] = diskBusy * diskFactor;
+    oDiskLatency[i] = 0.002 * diskFactor;
+    oDiskBytes[i] = 4096 * (200 * diskBusy + 20 * loadRatio);
+    oNetBytes[i] = traffic * p.bytesPerRequest * (1 - 3 * (dLossFraction[i] as number));
+    if (needs.retrans) oRetrans[i] = traffic * (p.retransPerRequest * Math.exp(0.5 * (r[b + 8] as number)) + 20 * (dLossFraction[i] as number));
+    if (needs.drops) oDrops[i] = traffic * 8 * (dLossFraction[i] as number) * Math.exp(0.3 * (r[b + 9] as number)) + (r[b + 10] as number);
+    oClientLatency[i] = client;
+    oTail[i] = 1 + 0.5 * p.tailSigma * Math.abs(r[b + 11] as number) + (dTailExtra[i] as number);
+    oPoolUse[i] = poolUse;
+    oPoolPending[i] = overflow * p.poolSize * 3 + (r[b + 12] as number);
+    oPoolWait[i] = poolWait;
+    oThreads[i] = 40 + 30 * cpu + 60 * poolUse;
   }
-  o.traffic[i] = traffic;
-  o.cpu[i] = cpu;
-  o.steal[i] = steal;
-  o.throttle[i] = clamp(Math.max(0, rho - 0.85) * 3, 0, 1) * (0.8 + 0.2 * (r[7] as number));
-  o.mem[i] = mem;
-  o.memAvailable[i] = 1 - mem;
-  o.gc[i] = (0.05 + 0.2 * loadRatio) * (1 + 6 * gcPressure * gcPressure);
-  o.diskBusy[i] = diskBusy;
-  o.diskQueue[i] = diskBusy * diskFactor;
-  o.diskLatency[i] = 0.002 * diskFactor;
-  o.diskBytes[i] = 4096 * (200 * diskBusy + 20 * loadRatio);
-  o.netBytes[i] = traffic * p.bytesPerRequest * (1 - 3 * (d.lossFraction[i] as number));
-  if (needs.retrans) o.retrans[i] = traffic * (p.retransPerRequest * Math.exp(0.5 * (r[8] as number)) + 20 * (d.lossFraction[i] as number));
-  if (needs.drops) o.drops[i] = traffic * 8 * (d.lossFraction[i] as number) * Math.exp(0.3 * (r[9] as number)) + (r[10] as number);
-  o.clientLatency[i] = client;
-  o.tail[i] = 1 + 0.5 * p.tailSigma * Math.abs(r[11] as number) + (d.tailExtra[i] as number);
-  o.poolUse[i] = poolUse;
-  o.poolPending[i] = overflow * p.poolSize * 3 + (r[12] as number);
-  o.poolWait[i] = poolWait;
-  o.threads[i] = 40 + 30 * cpu + 60 * poolUse;
 }
 
 /** Same value bit for bit (so +0 and -0 differ, and NaN is never taken as equal: recomputed). */
@@ -404,7 +460,7 @@ function deriveBoth(p: ServiceParams, d: Drivers, qd: Drivers | undefined, baseT
   const quietTo = Math.min(n, options.counterfactualSteps?.[1] ?? n);
   let quietUptimeS = uptimeS;
   let quietRestarts = restarts;
-  const r = new Float64Array(DRAWS_PER_STEP);
+  const r = borrowScratch(ScratchSlot.Draws, DRAWS_PER_STEP * n);
   const u = new Float64Array(DRAWS_PER_STEP);
   for (const [group, keys] of SKIPPABLE) {
     if (needs[group]) continue;
@@ -413,13 +469,16 @@ function deriveBoth(p: ServiceParams, d: Drivers, qd: Drivers | undefined, baseT
       q?.[key].fill(Number.NaN);
     }
   }
+  // All draws first (in step order, as always), then the observables from them.
+  for (let i = 0; i < n; i += 1) drawStep(rng, u, r, DRAWS_PER_STEP * i, needs);
+  writeSteps(p, d, noise, r, o, needs, 0, n);
+  const restartDriver = d.restart;
+  const quietRestartDriver = qd?.restart;
   for (let i = 0; i < n; i += 1) {
-    drawStep(rng, u, r, needs);
-    writeStep(p, d, i, noise, r, o, needs);
     // Drawn on every step, so the number of draws does not depend on the drivers: a counterfactual
     // run without the fault (same generator state) then sees exactly the same noise.
-    const restartDraw = r[5] as number;
-    if ((d.restart[i] as number) > 0) {
+    const restartDraw = r[DRAWS_PER_STEP * i + 5] as number;
+    if ((restartDriver[i] as number) > 0) {
       uptimeS = stepS * restartDraw;
       restarts += 1;
     } else {
@@ -427,9 +486,8 @@ function deriveBoth(p: ServiceParams, d: Drivers, qd: Drivers | undefined, baseT
     }
     o.uptime[i] = uptimeS;
     o.restarts[i] = restarts;
-    if (q && qd && differs) {
-      if (differs[i] === 1 && i >= quietFrom && i < quietTo) writeStep(p, qd, i, noise, r, q, needs);
-      if ((qd.restart[i] as number) > 0) {
+    if (q && quietRestartDriver) {
+      if ((quietRestartDriver[i] as number) > 0) {
         quietUptimeS = stepS * restartDraw;
         quietRestarts += 1;
       } else {
@@ -437,6 +495,19 @@ function deriveBoth(p: ServiceParams, d: Drivers, qd: Drivers | undefined, baseT
       }
       q.uptime[i] = quietUptimeS;
       q.restarts[i] = quietRestarts;
+    }
+  }
+  if (q && qd && differs) {
+    // The counterfactual at the runs of steps (inside its range) where the drivers differ.
+    for (let a = quietFrom; a < quietTo;) {
+      if (differs[a] === 0) {
+        a += 1;
+        continue;
+      }
+      let b = a;
+      while (b < quietTo && differs[b] === 1) b += 1;
+      writeSteps(p, qd, noise, r, q, needs, a, b);
+      a = b;
     }
   }
   if (q && differs) copyUnchangedSteps(o, q, differs, quietFrom, quietTo);
