@@ -34,6 +34,20 @@ export function measureFaultEvidence(metrics: readonly EvidenceMetric[], observa
   const effects = new Float64Array(windowSteps);
   const faultedTail = faulted.tail;
   const quietTail = counterfactual.tail;
+  // tail ** weight over the window, once per weight: quantile copies of several roles share weights.
+  const tailPowers = new Map<number, { readonly faulted: Float64Array; readonly quiet: Float64Array }>();
+  const findTailPowers = (weight: number): { readonly faulted: Float64Array; readonly quiet: Float64Array } => {
+    let powers = tailPowers.get(weight);
+    if (!powers) {
+      powers = { faulted: new Float64Array(windowSteps), quiet: new Float64Array(windowSteps) };
+      for (let k = 0; k < windowSteps; k += 1) {
+        powers.faulted[k] = (faultedTail[windowStart + k] as number) ** weight;
+        powers.quiet[k] = (quietTail[windowStart + k] as number) ** weight;
+      }
+      tailPowers.set(weight, powers);
+    }
+    return powers;
+  };
   for (const { spec, baseline } of metrics) {
     if (spec.role.isIrrelevant) continue;
     const source = spec.role.source;
@@ -44,13 +58,14 @@ export function measureFaultEvidence(metrics: readonly EvidenceMetric[], observa
     // |a − b| first, divided by the scale below: the same operations in the same order as one
     // expression, so the effects are bit for bit what they were.
     let isUnmoved = true;
+    const powers = tailWeight > 0 ? findTailPowers(tailWeight) : undefined;
     for (let k = 0; k < windowSteps; k += 1) {
       const i = windowStart + k;
       let a = (withFault[i] as number) * factor;
       let b = (withoutFault[i] as number) * factor;
-      if (tailWeight > 0) {
-        a *= (faultedTail[i] as number) ** tailWeight;
-        b *= (quietTail[i] as number) ** tailWeight;
+      if (powers) {
+        a *= powers.faulted[k] as number;
+        b *= powers.quiet[k] as number;
       }
       const difference = Math.abs(a - b);
       if (difference !== 0) isUnmoved = false;
