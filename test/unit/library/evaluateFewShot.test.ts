@@ -1,5 +1,6 @@
 import assert from 'node:assert/strict';
 import { computeAccuracy, computeMacroF1 } from '../../../training/evaluateFewShot';
+import { computeMeanSd } from '../../../training/fewShotScoring';
 
 describe('few-shot evaluation metrics', () => {
   it('macro-F1 matches the scikit-learn f1_score documentation example (average="macro" → 0.2667)', () => {
@@ -13,5 +14,13 @@ describe('few-shot evaluation metrics', () => {
 
   it('counts a library label predicted for a built-in example as a miss of that class', () => {
     assert.equal(computeMacroF1(['a', 'b'], ['a', 'pool_leak'], ['a', 'b']), 0.5);
+  });
+
+  it('mean and population sd match the textbook example 2, 4, 4, 4, 5, 5, 7, 9 → 5 and 2, ignoring NaN', () => {
+    // Worked example of the population standard deviation (Wikipedia, "Standard deviation", basic example).
+    const [m, sd] = computeMeanSd([2, 4, 4, 4, Number.NaN, 5, 5, 7, 9]);
+    assert.equal(m, 5);
+    assert.equal(sd, 2);
+    assert.ok(computeMeanSd([]).every(Number.isNaN));
   });
 });

@@ -74,19 +74,28 @@ describe('incident library with the real bundled model: a recurrence on the same
       }
     }
     console.log(`      recognised ${recognised} of ${queries.length} (system ${system}, model ${modelVersion})`);
+    // Measured with model 0.2.0 (70e0264a6d45) and the shipped defaults: 10 of 12.
     assert.ok(recognised >= 6, `expected at least 6 of 12 recognised, got ${recognised}`);
   });
 
-  it('never claims a built-in incident the head is confident about', async () => {
+  it('leaves built-in incidents the head is confident about to the head (the plain gate never, the overrides rarely, claim them)', async () => {
     const queries = await classify(model, draw(4, 4 * CLASSES.length, CLASSES));
-    const confident = queries.filter((q) => Math.max(...Object.values(q.probabilities)) > DEFAULT_COMPETITION_OPTIONS.headConfidenceCap);
-    assert.ok(confident.length >= 5, `expected several confident head verdicts to check, got ${confident.length}`);
+    const cap = DEFAULT_COMPETITION_OPTIONS.headConfidenceCap;
+    const confident = queries.filter((q) => Math.max(...Object.values(q.probabilities)) > cap);
+    assert.ok(confident.length >= 10, `expected several confident head verdicts to check, got ${confident.length}`);
+    const plainGate = { ...DEFAULT_COMPETITION_OPTIONS, overrideMargin: Number.POSITIVE_INFINITY, recurrenceSimilarity: Number.POSITIVE_INFINITY };
+    let claimedByDefaults = 0;
     for (const q of confident) {
-      const match = matchLibrary(q.probabilities, q.embedding, library, modelVersion, { metrics: q.example.metrics });
       const head = Object.entries(q.probabilities).reduce((a, b) => (b[1] > a[1] ? b : a))[0];
-      assert.equal(match.verdict.libraryWeight, 0);
-      assert.equal(match.verdict.className, head);
-      assert.equal(match.verdict.libraryMatch, undefined);
+      const plain = matchLibrary(q.probabilities, q.embedding, library, modelVersion, { metrics: q.example.metrics }, plainGate);
+      assert.equal(plain.verdict.libraryWeight, 0);
+      assert.equal(plain.verdict.className, head);
+      assert.equal(plain.verdict.libraryMatch, undefined);
+      const shipped = matchLibrary(q.probabilities, q.embedding, library, modelVersion, { metrics: q.example.metrics });
+      if (shipped.verdict.libraryMatch !== undefined) claimedByDefaults += 1;
     }
+    // Measured with model 0.2.0 (70e0264a6d45): 1 of 27 (a network-latency incident, nearest to the pool exhaustions).
+    console.log(`      shipped defaults claimed ${claimedByDefaults} of ${confident.length} confident built-in incidents`);
+    assert.ok(claimedByDefaults <= Math.ceil(0.1 * confident.length), `expected at most 10 % claimed, got ${claimedByDefaults} of ${confident.length}`);
   });
 });
