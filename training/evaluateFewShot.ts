@@ -361,7 +361,8 @@ function calibrateCompetition(groups: readonly EvaluationGroup[], heldOutClasses
   let best: { options: CompetitionOptions; accuracy: number; episodes: GateEpisode[] } | undefined;
   for (const classAggregate of aggregates) for (const signatureWeight of weights) {
     const scale = estimateSimilarityScale(sims, signatureWeight, classAggregate);
-    const ranked: CompetitionOptions = { ...DEFAULT_COMPETITION_OPTIONS, scale, classAggregate };
+    // Tiers start off (not inherited from the shipped defaults); the search turns on only those it is given.
+    const ranked: CompetitionOptions = { ...DEFAULT_COMPETITION_OPTIONS, scale, classAggregate, overrideMargin: Number.POSITIVE_INFINITY, recurrenceSimilarity: Number.POSITIVE_INFINITY };
     const episodes: GateEpisode[] = sims.map((episode) => ({
       heldOut: groups.flatMap((g, gi) => g.heldOut.map((q, i) => toGateCase(q, episode[gi].heldOut[i], ranked))),
       builtIn: groups.flatMap((g, gi) => g.builtIn.map((q, i) => toGateCase(q, episode[gi].builtIn[i], ranked))),
