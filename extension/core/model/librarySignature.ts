@@ -47,11 +47,7 @@ export function computeMetricSignature(metrics: readonly SignatureMetric[], spec
   for (const m of metrics) {
     if (seen.has(m.id)) continue;
     seen.add(m.id);
-    thinned.push({
-      id: m.id, family: m.family,
-      baseline: toGapArray(downsampleForLibrary(m.baseline, LIBRARY_MAX_POINTS, 'pick')),
-      window: toGapArray(downsampleForLibrary(m.window, LIBRARY_MAX_POINTS, 'mean')),
-    });
+    thinned.push({ id: m.id, family: m.family, baseline: thinAsStored(m.baseline, 'pick'), window: thinAsStored(m.window, 'mean') });
   }
   const signature = new Map<string, Float64Array>();
   if (thinned.length === 0) return signature;
@@ -64,8 +60,14 @@ export function computeMetricSignature(metrics: readonly SignatureMetric[], spec
   return signature;
 }
 
-function toGapArray(values: readonly (number | null)[]): Float64Array {
-  return Float64Array.from(values, (v) => (v === null ? Number.NaN : v));
+/**
+ * A series as a library entry stores it. Short series are copied as they are: storage keeps them
+ * whole (up to 7-digit rounding, far below anything the robust z-scores resolve), and skipping the
+ * rounding keeps matching a large library fast.
+ */
+function thinAsStored(values: ArrayLike<number>, mode: 'pick' | 'mean'): Float64Array {
+  if (values.length <= LIBRARY_MAX_POINTS) return Float64Array.from(values, (v) => (Number.isFinite(v) ? v : Number.NaN));
+  return Float64Array.from(downsampleForLibrary(values, LIBRARY_MAX_POINTS, mode), (v) => (v === null ? Number.NaN : v));
 }
 
 /**
