@@ -154,6 +154,12 @@ export async function runScreenTests(input: ScreenTestInput): Promise<{ readonly
     await similarView.locator('.verdict-caution', { hasText: 'not a root cause' }).waitFor();
     await shot('05-similar-export-library-match');
     log(`similar export: nearest "${nearestText}"${matchText ? `; "${matchText}"` : ''}`);
+    // The nearest incident is a link: with no postmortem recorded it opens the labelled export.
+    const link = similarView.locator('.verdict-library-nearest .library-link').first();
+    assert.match((await link.textContent()) ?? '', new RegExp(`export ${EXPORT_NAME.replace('.', '\\.')}`));
+    await link.click();
+    await page.locator('.tabs-container .tab', { hasText: EXPORT_NAME }).waitFor({ timeout: 60_000 });
+    log('nearest incident link opened the labelled export');
     await runCommand(page, 'View: Close All Editors');
 
     await openInExplorerMenu(page, input.largeExportName, 'Open Metric Viewer');
