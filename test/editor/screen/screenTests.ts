@@ -128,9 +128,17 @@ export async function runScreenTests(input: ScreenTestInput): Promise<{ readonly
     await openInExplorerMenu(page, EXPORT_NAME, 'Classify Export');
     await webviewContent(page).locator('#verdict-title').waitFor({ timeout: 120_000 });
     await runCommand(page, 'Label Window for the Incident Library');
-    await page.locator('.quick-input-list .monaco-list-row', { hasText: 'New label' }).first().waitFor({ timeout: 20_000 });
-    await page.keyboard.press('Enter');
-    await page.locator('.quick-input-widget', { hasText: 'Name of this kind of incident' }).waitFor({ timeout: 20_000 });
+    const newLabelRow = page.locator('.quick-input-list .monaco-list-row', { hasText: 'New label' }).first();
+    await newLabelRow.waitFor({ timeout: 20_000 });
+    // Under load the quick pick can render before it takes keyboard focus, so an Enter may be lost:
+    // choose the row by clicking it, and again while the name prompt has not appeared.
+    const namePrompt = page.locator('.quick-input-widget', { hasText: 'Name of this kind of incident' });
+    for (let attempt = 1; ; attempt++) {
+      if (await newLabelRow.isVisible()) await newLabelRow.click().catch(() => undefined);
+      const isShown = await namePrompt.waitFor({ timeout: 7_000 }).then(() => true, () => false);
+      if (isShown) break;
+      if (attempt >= 3) throw new Error('the "New label" choice did not open the name prompt after 3 clicks');
+    }
     await page.locator('.quick-input-widget input.input').fill(LIBRARY_LABEL);
     await page.keyboard.press('Enter');
     await waitForFile(join(input.workspace, '.metric-triage', 'incident-library.json'), 60_000);
