@@ -132,6 +132,12 @@ async function main(): Promise<void> {
   if (limit !== undefined && baselines.length > 0) {
     log(`retraining our architecture on the same ${limit} examples`);
     sameData.push({ name: 'ours, same training subset as the baselines', predicted: scoreOursOnSubset(splits.train.slice(0, limit), test, spec.training.epochs, spec.training.seed), note: `trained on the first ${limit} training examples, ${spec.training.epochs} epochs` });
+    // Like for like: also the baselines' epoch budget, so neither data nor training length differs.
+    const epochsAt = argv.indexOf('--baseline-epochs');
+    const baselineEpochs = epochsAt >= 0 ? Number(argv[epochsAt + 1]) : undefined;
+    if (baselineEpochs !== undefined && baselineEpochs !== spec.training.epochs) {
+      sameData.push({ name: 'ours, same training subset and epochs as the baselines', predicted: scoreOursOnSubset(splits.train.slice(0, limit), test, baselineEpochs, spec.training.seed), note: `trained on the first ${limit} training examples, ${baselineEpochs} epochs` });
+    }
   }
   const rows = [{ name: 'ours: family-pooled set model (bundled ONNX)', predicted: ours.predicted, note: `trained on all ${splits.train.length} training examples, ${spec.training.epochs} epochs` as string | undefined }, ...sameData, ...baselines].map((r) => {
     const confusion = computeConfusionMatrix(labels, r.predicted, CLASSES.length);
