@@ -38,9 +38,15 @@ function webviewContent(page: Page): FrameLocator {
 }
 
 async function runCommand(page: Page, title: string): Promise<void> {
-  await page.keyboard.press('F1');
   const input = page.locator('.quick-input-widget input.input');
-  await input.waitFor({ state: 'visible' });
+  // A busy workbench can drop an F1 that arrives while focus moves (e.g. a webview closing):
+  // press it again until the command box shows, up to about the default timeout in all.
+  for (let attempt = 1; ; attempt++) {
+    await page.keyboard.press('F1');
+    const isShown = await input.waitFor({ state: 'visible', timeout: 10_000 }).then(() => true, () => false);
+    if (isShown) break;
+    if (attempt >= 4) throw new Error(`the command box did not open for "${title}" after ${attempt} presses of F1`);
+  }
   await input.fill(`>${title}`);
   await page.locator('.quick-input-list .monaco-list-row', { hasText: title }).first().waitFor();
   await page.keyboard.press('Enter');
