@@ -1,5 +1,5 @@
 /**
- * `npm run evaluate [-- --card] [--few-shot] [--no-baselines] [--baseline-train N] [--baseline-epochs E]`: rebuilds the splits recorded in
+ * `npm run evaluate [-- --card] [--few-shot] [--no-baselines] [--baselines gcn,gin,gru,statistics] [--baseline-train N] [--baseline-epochs E]`: rebuilds the splits recorded in
  * media/model/classifier.json, scores the bundled model through the real runtime (onnxruntime) on the
  * held-out simulated systems, trains and scores the baselines on the same data, and prints markdown
  * tables. With `--baseline-train N` the baselines (tfjs, slow on 2 cores) see only the first N training
@@ -18,6 +18,7 @@ import { DEFAULT_WINDOW_SPEC } from '../extension/core/model/encode';
 import { DEFAULT_SHAPE } from './setModel';
 import { MODEL_DIR, predictAll } from './train';
 import { trainSetModel } from './trainSetModel';
+import { BASELINE_KINDS, type BaselineKind } from './baselines';
 
 interface Scored { readonly name: string; readonly predicted: Int32Array; readonly note?: string }
 
@@ -96,9 +97,19 @@ async function scoreBaselineModels(splits: { train: TrainingExample[]; calibrati
   const train = trainLimit !== undefined ? splits.train.slice(0, trainLimit) : splits.train;
   const epochsAt = process.argv.indexOf('--baseline-epochs');
   const epochs = epochsAt >= 0 ? Number(process.argv[epochsAt + 1]) : undefined;
-  const results = await mod.scoreBaselines({ train, calibration: splits.calibration, test: splits.test }, { log, epochs });
+  const onlyAt = process.argv.indexOf('--baselines');
+  const only = onlyAt >= 0 ? parseBaselineKinds(process.argv[onlyAt + 1]) : undefined;
+  const results = await mod.scoreBaselines({ train, calibration: splits.calibration, test: splits.test }, { log, epochs, ...(only ? { only } : {}) });
   const note = `trained on ${train.length === splits.train.length ? 'all' : `the first ${train.length} of`} ${splits.train.length} training examples${epochs !== undefined ? `, ${epochs} epochs` : ''}`;
   return results.map((r) => ({ name: r.name, predicted: r.predicted, note }));
+}
+
+/** `--baselines gcn,gin`: the comma-separated baseline kinds to train; throws naming a kind it does not know. */
+function parseBaselineKinds(text: string | undefined): BaselineKind[] {
+  const kinds = (text ?? '').split(',').map((k) => k.trim()).filter((k) => k !== '');
+  const unknown = kinds.filter((k) => !(BASELINE_KINDS as readonly string[]).includes(k));
+  if (kinds.length === 0 || unknown.length > 0) throw new Error(`--baselines: expected a comma-separated list of ${BASELINE_KINDS.join(', ')}, got ${JSON.stringify(text ?? '')}`);
+  return kinds as BaselineKind[];
 }
 
 /** Our architecture retrained on the same subset the baselines saw, scored with the reference forward pass. */

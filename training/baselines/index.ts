@@ -37,8 +37,14 @@ export interface BaselineOptions {
   readonly learningRate?: number;
   /** Minibatch size of the neural baselines (default 64). */
   readonly batchSize?: number;
+  /** Which baselines to train (default all): a longer run can then afford the slow ones it keeps. */
+  readonly only?: readonly BaselineKind[];
   readonly log?: (line: string) => void;
 }
+
+/** Baseline families that {@link BaselineOptions.only} can select. */
+export const BASELINE_KINDS = ['gcn', 'gin', 'gru', 'statistics'] as const;
+export type BaselineKind = (typeof BASELINE_KINDS)[number];
 
 /** The three splits, as buildSplits returns them. */
 export interface BaselineSplit {
@@ -86,11 +92,13 @@ export async function scoreBaselines(
     windowLength: getRowLength(DEFAULT_WINDOW_SPEC), sequenceLength: DEFAULT_WINDOW_SPEC.sampleCount,
     classCount: CLASSES.length, hiddenSize: 32,
   };
+  const isWanted = (kind: BaselineKind): boolean => options.only === undefined || options.only.includes(kind);
   const builders: ReadonlyArray<(random: () => number) => NodeSetModel> = [
     (random) => createGcnBaseline(spec, random),
     (random) => createGinBaseline(spec, random),
   ];
   for (const [k, build] of builders.entries()) {
+    if (!isWanted(k === 0 ? 'gcn' : 'gin')) continue;
     const random = createRandom(seed * 1000 + k);
     const model = build(random);
     const start = performance.now();
@@ -101,7 +109,7 @@ export async function scoreBaselines(
     model.variables.forEach((v) => v.dispose());
   }
 
-  {
+  if (isWanted('gru')) {
     const random = createRandom(seed * 1000 + builders.length);
     const gru = initGruParameters({ rowLength: spec.windowLength, sequenceLength: spec.sequenceLength, hiddenSize: 16, classCount: CLASSES.length }, random);
     const start = performance.now();
@@ -111,6 +119,7 @@ export async function scoreBaselines(
     log(`GRU: trained in ${trainSeconds.toFixed(1)} s`);
   }
 
+  if (!isWanted('statistics')) return results;
   const summaryStart = performance.now();
   const trainSummaries = train.map((e) => computeFamilySummary(e.metrics));
   const summarySeconds = (performance.now() - summaryStart) / 1000;
