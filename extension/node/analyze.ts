@@ -41,6 +41,7 @@ export interface AnalysisResult {
   readonly frame: MetricFrame;
   readonly finding: Finding;
   readonly suggestion: { readonly incident: TimeSpan; readonly baseline: TimeSpan };
+  /** Class probabilities over time, row-major [T, C]; timesMs[t] is the centre of the window point t classified. */
   readonly timeline: { readonly timesMs: Float64Array; readonly classNames: readonly string[]; readonly probabilities: Float32Array };
 }
 
@@ -177,6 +178,8 @@ export async function analyzeExport(path: string, options: AnalyzeOptions): Prom
   return {
     frame, finding,
     suggestion: { incident: toSpan(frame, windows.suggested.incident), baseline: toSpan(frame, windows.suggested.baseline) },
-    timeline: { timesMs: Float64Array.from(timelinePoints.map((p) => p.timeMs)), classNames, probabilities },
+    // Each point is placed at the centre of the window it classified, so the strip lines up with the
+    // incident shading instead of trailing it by half a window.
+    timeline: { timesMs: Float64Array.from(timelinePoints.map((p) => frame.timesMs[Math.floor((p.startIndex + p.index) / 2)])), classNames, probabilities },
   };
 }

@@ -29,7 +29,11 @@ export interface WindowVerdict extends ClassProbability {
 
 /** Class probabilities for the window ending at one grid step. */
 export interface TimelinePoint {
+  /** Grid index of the last step of the classified window (the point is known from this step on). */
   readonly index: number;
+  /** Grid index of the first step of the classified window. */
+  readonly startIndex: number;
+  /** Time of `index`, epoch ms. */
   readonly timeMs: number;
   readonly probabilities: Float64Array;
   readonly classIndex: number;
@@ -211,7 +215,7 @@ export function createClassifier(runner: InferenceRunner, spec: ClassifierSpec):
         const probabilities = hasNode
           ? computeCalibratedLogProbabilities(output.logits.subarray(i * output.classCount, (i + 1) * output.classCount), spec.temperature).map(Math.exp)
           : Float64Array.from(spec.classPriors);
-        points.push({ index: end, timeMs: frame.timesMs[end], probabilities, classIndex: rankClasses(probabilities, spec.classes)[0].classIndex });
+        points.push({ index: end, startIndex: end - windowSteps + 1, timeMs: frame.timesMs[end], probabilities, classIndex: rankClasses(probabilities, spec.classes)[0].classIndex });
       });
     }
     return points;

@@ -139,7 +139,10 @@ describe('bundled classifier model (real ONNX, onnxruntime-node)', () => {
     const first = model.spec.windowSpec.minBaselineSamples + 12 - 1;
     assert.equal(points.length, STEPS - first);
     assert.equal(points[0].index, first);
-    for (const p of points) assert.ok(Math.abs(p.probabilities.reduce((a, b) => a + b, 0) - 1) < 1e-6);
+    for (const p of points) {
+      assert.ok(Math.abs(p.probabilities.reduce((a, b) => a + b, 0) - 1) < 1e-6);
+      assert.equal(p.index - p.startIndex + 1, 12, 'each point classifies the 12 steps ending at its index');
+    }
     await assert.rejects(classifier.timeline(makeFrame(nab.slice(0, 2)), { isCancelled: () => true }), /cancelled/);
   });
 });
