@@ -2,6 +2,7 @@
  * Scoring helpers of the few-shot evaluation: macro-F1 over string labels (library labels may fall
  * outside the scored classes), accuracy, and seeded support draws.
  */
+import { CLASSES } from '../extension/core/model/types';
 import { computeClassScores, computeConfusionMatrix } from './metrics';
 import { createRandom } from './simulator';
 import type { MetricSignature } from '../extension/core/model/librarySignature';
@@ -62,3 +63,42 @@ export function computeMeanSd(values: readonly number[]): [number, number] {
   const m = finite.reduce((s, x) => s + x, 0) / finite.length;
   return [m, Math.sqrt(finite.reduce((s, x) => s + (x - m) ** 2, 0) / finite.length)];
 }
+
+/** The bundled head's top class per query (no library). */
+export function predictBase(queries: readonly EmbeddedExample[]): string[] {
+  return queries.map((q) => Object.entries(q.probabilities).reduce((best, cur) => (cur[1] > best[1] ? cur : best))[0]);
+}
+
+/**
+ * One team's view: the library's support incidents, new incidents of the held-out types, and
+ * built-in incidents. The cross-system protocol is one group; the same-system protocol has one
+ * group per simulated system (a team labels incidents of its own services).
+ */
+export interface EvaluationGroup {
+  readonly support: readonly EmbeddedExample[];
+  readonly heldOut: readonly EmbeddedExample[];
+  readonly builtIn: readonly EmbeddedExample[];
+  /** The team's own labelled incidents of built-in classes, drawn k per class into the library too. */
+  readonly builtInSupport?: readonly EmbeddedExample[];
+}
+
+/** The library of one episode: k held-out incidents per class, plus k per built-in class when the group has them. */
+export function drawLibrary(g: EvaluationGroup, heldOutClasses: readonly string[], k: number, seed: number): EmbeddedExample[] {
+  const shots = drawSupport(g.support, heldOutClasses, k, seed);
+  if (g.builtInSupport !== undefined) shots.push(...drawSupport(g.builtInSupport, CLASSES, k, seed + 1));
+  return shots;
+}
+
+/** Episode results for one k. */
+export interface KResult {
+  readonly k: number;
+  readonly accuracyMean: number;
+  readonly accuracySd: number;
+  readonly accuracyPrototypeOnly: number;
+  readonly f1Base: number;
+  readonly f1WithLibraryMean: number;
+  readonly f1DropWorst: number;
+}
+
+/** Arithmetic mean (NaN for an empty list). */
+export const mean = (xs: readonly number[]): number => xs.reduce((s, x) => s + x, 0) / xs.length;
