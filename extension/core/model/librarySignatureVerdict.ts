@@ -7,7 +7,7 @@
  * When the team's past incidents of a built-in class are nearer, the library stays silent: that
  * is the head's own ground, and letting the library overrule it there cost built-in accuracy.
  */
-import type { BlendedVerdict } from './libraryVerdict';
+import { summarizeBlend, type BlendedVerdict } from './libraryVerdict';
 import { combineSimilarity, computeEmbeddingCosine, computeSignatureCosine, hasSharedMetric, type MetricSignature, type SimilarityScale } from './librarySignature';
 import { CLASSES } from './types';
 
@@ -159,18 +159,10 @@ export function competeVerdict(baseProbabilities: Readonly<Record<string, number
       blended.set(x.c.label, (blended.get(x.c.label) ?? 0) + part);
     });
   }
-  const ranked = [...blended].sort((a, b) => b[1] - a[1]);
-  const [className, probability] = ranked[0];
-  const runnerUp = ranked[1] ?? ['', 0];
-  const fromLibrary = libraryPart.get(className) ?? 0;
-  const winnerClass = classes.find((c) => c.label === className);
-  const isLibraryMatch = winnerClass !== undefined && fromLibrary > probability - fromLibrary;
   return {
-    probabilities: Object.fromEntries(blended), className, probability,
-    runnerUp: { className: runnerUp[0], probability: runnerUp[1] },
+    ...summarizeBlend(blended, libraryPart, classes),
     libraryWeight: weight,
     ...(winner !== undefined ? { nearestSimilarity: scores[nearestIndex], nearestLabel: winner.label } : {}),
-    ...(isLibraryMatch ? { libraryMatch: { label: className, exampleCount: winnerClass.exampleCount } } : {}),
   };
 }
 

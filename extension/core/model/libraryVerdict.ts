@@ -73,17 +73,32 @@ export function blendVerdict(baseProbabilities: Readonly<Record<string, number>>
     libraryPart.set(score.label, part);
     blended.set(score.label, (blended.get(score.label) ?? 0) + part);
   }
+  return {
+    ...summarizeBlend(blended, libraryPart, libraryScores),
+    libraryWeight: weight, ...(nearest !== undefined ? { nearestSquaredDistance: nearest } : {}),
+  };
+}
+
+/**
+ * The winner, runner-up and library match of blended probabilities (shared by the blend rules):
+ * ties keep the first class in insertion order; the winner is a library match when more of its
+ * probability came from the library (`libraryPart`) than from the head and `libraryClasses` has it.
+ */
+export function summarizeBlend(
+  blended: ReadonlyMap<string, number>,
+  libraryPart: ReadonlyMap<string, number>,
+  libraryClasses: readonly { readonly label: string; readonly exampleCount: number }[],
+): Pick<BlendedVerdict, 'probabilities' | 'className' | 'probability' | 'runnerUp' | 'libraryMatch'> {
   const ranked = [...blended].sort((a, b) => b[1] - a[1]);
   const [className, probability] = ranked[0];
   const runnerUp = ranked[1] ?? ['', 0];
   const fromLibrary = libraryPart.get(className) ?? 0;
-  const winnerScore = libraryScores.find((s) => s.label === className);
-  const isLibraryMatch = winnerScore !== undefined && fromLibrary > probability - fromLibrary;
+  const winner = libraryClasses.find((c) => c.label === className);
+  const isLibraryMatch = winner !== undefined && fromLibrary > probability - fromLibrary;
   return {
     probabilities: Object.fromEntries(blended), className, probability,
     runnerUp: { className: runnerUp[0], probability: runnerUp[1] },
-    libraryWeight: weight, ...(nearest !== undefined ? { nearestSquaredDistance: nearest } : {}),
-    ...(isLibraryMatch ? { libraryMatch: { label: className, exampleCount: winnerScore.exampleCount } } : {}),
+    ...(isLibraryMatch ? { libraryMatch: { label: className, exampleCount: winner.exampleCount } } : {}),
   };
 }
 
