@@ -40,19 +40,29 @@ const scale = (d: Drivers, key: DriverKey, env: Float64Array, factor: number): v
   for (let i = 0; i < env.length; i += 1) arr[i] = (arr[i] as number) * (1 + (env[i] as number) * (factor - 1));
 };
 
-/** A random unrelated change during the incident, so side movements are not themselves a label. */
-function addSecondaryChange(d: Drivers, env: Float64Array, rng: Random): void {
+/**
+ * A random unrelated change during the incident, so side movements are not themselves a label.
+ * It is a coincidence, not part of the fault: it goes into every driver set given, so a
+ * counterfactual without the fault still holds it and the fault's evidence never rests on it.
+ */
+function addSecondaryChange(targets: readonly Drivers[], env: Float64Array, rng: Random): void {
   const choice = rng.int(0, 4);
   const size = rng.uniform(0.05, 0.3);
-  if (choice === 0) add(d, 'memExtra', env, size * (rng.chance(0.5) ? 1 : -0.5));
-  else if (choice === 1) add(d, 'cpuExtra', env, size * 0.4);
-  else if (choice === 2) add(d, 'diskExtra', env, size * 0.5);
-  else if (choice === 3) scale(d, 'trafficScale', env, 1 + size * (rng.chance(0.5) ? 1 : -0.6));
-  else add(d, 'errorExtra', env, size * 0.02);
+  const sign = choice === 0 || choice === 3 ? rng.chance(0.5) : true;
+  for (const d of targets) {
+    if (choice === 0) add(d, 'memExtra', env, size * (sign ? 1 : -0.5));
+    else if (choice === 1) add(d, 'cpuExtra', env, size * 0.4);
+    else if (choice === 2) add(d, 'diskExtra', env, size * 0.5);
+    else if (choice === 3) scale(d, 'trafficScale', env, 1 + size * (sign ? 1 : -0.6));
+    else add(d, 'errorExtra', env, size * 0.02);
+  }
 }
 
-/** Applies one fault to the drivers in place. */
-export function applyFault(d: Drivers, plan: FaultPlan, p: ServiceParams, rng: Random): void {
+/**
+ * Applies one fault to the drivers in place. `counterfactual`, when given, is the same system
+ * without the fault: it receives the fault's coincidental secondary change only.
+ */
+export function applyFault(d: Drivers, plan: FaultPlan, p: ServiceParams, rng: Random, counterfactual?: Drivers): void {
   const n = d.trafficScale.length;
   const env = drawEnvelope(rng, n, plan.startIndex, plan.endIndex);
   const I = plan.intensity;
@@ -105,7 +115,7 @@ export function applyFault(d: Drivers, plan: FaultPlan, p: ServiceParams, rng: R
       add(d, 'steal', env, 0.08 + 0.35 * I);
       break;
   }
-  if (rng.chance(0.45)) addSecondaryChange(d, env, rng);
+  if (rng.chance(0.45)) addSecondaryChange(counterfactual ? [d, counterfactual] : [d], env, rng);
 }
 
 function applyMemoryLeak(d: Drivers, plan: FaultPlan, p: ServiceParams, rng: Random): void {

@@ -194,7 +194,7 @@ export function renderSystem(spec: SystemSpec, request: RenderRequest, rng: Rand
   drawBenignEvents(drivers, rng, request.benignPerStep);
   for (const event of request.benignEvents ?? []) applyBenignEvent(drivers, event.kind, event.at, rng);
   const quietDrivers = request.keepCounterfactual ? copyDrivers(drivers, borrowScratch(ScratchSlot.QuietDrivers, DRIVER_KEYS.length * n)) : undefined;
-  for (const plan of request.faults) applyFault(drivers, plan, spec.params, rng);
+  for (const plan of request.faults) applyFault(drivers, plan, spec.params, rng, quietDrivers);
   const baseTraffic = drawBaseTraffic(spec.params, rng, timesMs, spec.stepMs, true);
   // The counterfactual sees the same noise as the faulted run, so only the fault differs between the two.
   // With reused buffers the result is read at once, by the series rendered here and by whoever

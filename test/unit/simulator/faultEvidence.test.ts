@@ -1,7 +1,8 @@
 import assert from 'node:assert/strict';
 import { buildSystemSpec, createRandom, sampleExamples } from '../../../training/simulator';
 import { measureFaultEvidence } from '../../../training/simulator/faultEvidence';
-import { OBSERVABLE_KEYS, type Observables } from '../../../training/simulator/latentModel';
+import { applyFault } from '../../../training/simulator/faults';
+import { copyDrivers, createDrivers, DRIVER_KEYS, OBSERVABLE_KEYS, type Observables } from '../../../training/simulator/latentModel';
 import { renderSystem } from '../../../training/simulator/renderSystem';
 
 function flatObservables(n: number, level: number): Observables {
@@ -25,6 +26,31 @@ describe('fault evidence (counterfactual rendering)', () => {
     const { faulted, counterfactual } = system.observables!;
     for (let i = 0; i < 120; i++) assert.equal(faulted.diskBusy[i], counterfactual.diskBusy[i]);
     assert.ok((faulted.diskBusy[140] as number) > (counterfactual.diskBusy[140] as number) + 0.3);
+  });
+
+  it('puts a fault\'s coincidental secondary change into the counterfactual too, so it is never the evidence', () => {
+    // network_latency itself only touches the delays, loss and the CPU scale; any other driver that
+    // moves is the coincidental change, and it must move the same in the run without the fault.
+    const own = new Set(['callerDelayS', 'dependencyDelayS', 'lossFraction', 'cpuScale']);
+    let coincidences = 0;
+    for (let seed = 1; seed <= 40; seed++) {
+      const faulted = createDrivers(60);
+      const untouched = copyDrivers(faulted);
+      const counterfactual = copyDrivers(faulted);
+      applyFault(faulted, { label: 'network_latency', startIndex: 20, endIndex: 50, intensity: 0.7 }, spec.params, createRandom(seed), counterfactual);
+      let isCoincidence = false;
+      for (const key of DRIVER_KEYS) {
+        if (own.has(key)) {
+          assert.deepEqual(counterfactual[key], untouched[key], `seed ${seed}: the fault's own ${key} stays out of the counterfactual`);
+          continue;
+        }
+        assert.deepEqual(faulted[key], counterfactual[key], `seed ${seed}: ${key}`);
+        if (faulted[key].some((v, i) => v !== untouched[key][i])) isCoincidence = true;
+      }
+      if (isCoincidence) coincidences++;
+    }
+    // A coincidental change comes with 45 % of faults: 40 draws hold some, but not all.
+    assert.ok(coincidences > 5 && coincidences < 35, `coincidences ${coincidences}`);
   });
 
   it('measures the effect in units of the baseline robust scale, 1.4826·MAD (Iglewicz & Hoaglin 1993)', () => {
