@@ -113,9 +113,9 @@ function parseBaselineKinds(text: string | undefined): BaselineKind[] {
 }
 
 /** Our architecture retrained on the same subset the baselines saw, scored with the reference forward pass. */
-function scoreOursOnSubset(train: readonly TrainingExample[], test: readonly TrainingExample[], epochs: number, seed: number): Int32Array {
+async function scoreOursOnSubset(train: readonly TrainingExample[], test: readonly TrainingExample[], epochs: number, seed: number): Promise<Int32Array> {
   const encodedTrain = encodeExamples(train, DEFAULT_WINDOW_SPEC);
-  const weights = trainSetModel(encodedTrain, DEFAULT_SHAPE, computeFeatureNormalization(encodedTrain), {
+  const weights = await trainSetModel(encodedTrain, DEFAULT_SHAPE, computeFeatureNormalization(encodedTrain), {
     epochs, batchSize: 64, learningRate: 3e-3, weightDecay: 1e-5, nodeDropoutRate: 0.5, seed,
   });
   const encodedTest = encodeExamples(test, DEFAULT_WINDOW_SPEC);
@@ -142,12 +142,12 @@ async function main(): Promise<void> {
   const sameData: Scored[] = [];
   if (limit !== undefined && baselines.length > 0) {
     log(`retraining our architecture on the same ${limit} examples`);
-    sameData.push({ name: 'ours, same training subset as the baselines', predicted: scoreOursOnSubset(splits.train.slice(0, limit), test, spec.training.epochs, spec.training.seed), note: `trained on the first ${limit} training examples, ${spec.training.epochs} epochs` });
+    sameData.push({ name: 'ours, same training subset as the baselines', predicted: await scoreOursOnSubset(splits.train.slice(0, limit), test, spec.training.epochs, spec.training.seed), note: `trained on the first ${limit} training examples, ${spec.training.epochs} epochs` });
     // Like for like: also the baselines' epoch budget, so neither data nor training length differs.
     const epochsAt = argv.indexOf('--baseline-epochs');
     const baselineEpochs = epochsAt >= 0 ? Number(argv[epochsAt + 1]) : undefined;
     if (baselineEpochs !== undefined && baselineEpochs !== spec.training.epochs) {
-      sameData.push({ name: 'ours, same training subset and epochs as the baselines', predicted: scoreOursOnSubset(splits.train.slice(0, limit), test, baselineEpochs, spec.training.seed), note: `trained on the first ${limit} training examples, ${baselineEpochs} epochs` });
+      sameData.push({ name: 'ours, same training subset and epochs as the baselines', predicted: await scoreOursOnSubset(splits.train.slice(0, limit), test, baselineEpochs, spec.training.seed), note: `trained on the first ${limit} training examples, ${baselineEpochs} epochs` });
     }
   }
   const rows = [{ name: 'ours: family-pooled set model (bundled ONNX)', predicted: ours.predicted, note: `trained on all ${splits.train.length} training examples, ${spec.training.epochs} epochs` as string | undefined }, ...sameData, ...baselines].map((r) => {

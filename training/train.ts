@@ -89,7 +89,7 @@ async function main(): Promise<void> {
     epochs: recipe.epochs, batchSize: 64, learningRate: 3e-3, weightDecay: 1e-5, nodeDropoutRate: 0.5, seed: recipe.seed,
     onEpoch: (epoch, loss, seconds) => log(`epoch ${epoch + 1}/${recipe.epochs}: loss ${loss.toFixed(4)} (${seconds.toFixed(1)} s)`),
   };
-  const weights = trainSetModel(train, DEFAULT_SHAPE, normalization, options);
+  const weights = await trainSetModel(train, DEFAULT_SHAPE, normalization, options);
   const c = DEFAULT_SHAPE.classCount;
   const d = DEFAULT_SHAPE.embeddingSize;
   const cal = predictAll(weights, calibration);

@@ -44,19 +44,30 @@ describe('set-model trainer', () => {
     assert.ok(checked > 30);
   });
 
-  it('learns a separable toy problem and is reproducible from its seed', () => {
+  it('learns a separable toy problem and is reproducible from its seed, in worker threads or not', async () => {
     const random = createRandom(5);
     const data = Array.from({ length: 300 }, (_, i) => makeExample(random, i % 3, 2 + (i % 5)));
     const norm = { mean: new Float32Array(SHAPE.featureCount), std: new Float32Array(SHAPE.featureCount).fill(1) };
     const options = { epochs: 15, batchSize: 32, learningRate: 1e-2, weightDecay: 0, nodeDropoutRate: 0.3, seed: 11 };
-    const a = trainSetModel(data, SHAPE, norm, options);
-    const b = trainSetModel(data, SHAPE, norm, options);
-    assert.deepEqual(Array.from(a.wc), Array.from(b.wc));
+    const a = await trainSetModel(data, SHAPE, norm, { ...options, useWorkers: false });
+    const b = await trainSetModel(data, SHAPE, norm, { ...options, useWorkers: true });
+    // The shards run in two worker threads for b and one after the other here for a: same sums, same order.
+    for (const name of PARAM_NAMES) assert.deepEqual(Array.from(a[name]), Array.from(b[name]), name);
     let correct = 0;
     for (const ex of data) {
       const { logits } = forwardSetModel(a, ex.features, ex.familyIds, ex.mask);
       if (logits.indexOf(Math.max(...logits)) === ex.label) correct++;
     }
     assert.ok(correct / data.length > 0.9, `accuracy ${correct / data.length}`);
+  });
+
+  it('changes the weights when the seed changes', async () => {
+    const random = createRandom(6);
+    const data = Array.from({ length: 60 }, (_, i) => makeExample(random, i % 3, 3));
+    const norm = { mean: new Float32Array(SHAPE.featureCount), std: new Float32Array(SHAPE.featureCount).fill(1) };
+    const options = { epochs: 2, batchSize: 16, learningRate: 1e-2, weightDecay: 0, nodeDropoutRate: 0.3, useWorkers: false };
+    const a = await trainSetModel(data, SHAPE, norm, { ...options, seed: 1 });
+    const b = await trainSetModel(data, SHAPE, norm, { ...options, seed: 2 });
+    assert.notDeepEqual(Array.from(a.wc), Array.from(b.wc));
   });
 });
