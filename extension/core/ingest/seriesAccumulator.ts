@@ -57,6 +57,27 @@ export function formatSeriesId(name: string, labels: Readonly<Record<string, str
   return `${name}{${parts.join(',')}}`;
 }
 
+/**
+ * Name and labels back from an id written by {@link formatSeriesId}. An id that is not in that
+ * form (a free-text column header, say) is a name without labels.
+ */
+export function parseSeriesId(id: string): { readonly name: string; readonly labels: Readonly<Record<string, string>> } {
+  const open = id.indexOf('{');
+  if (open <= 0 || !id.endsWith('}')) return { name: id, labels: {} };
+  const labels: Record<string, string> = {};
+  const body = id.slice(open + 1, -1);
+  const pair = /([^=,{}"]+)="((?:[^"\\]|\\.)*)"(,|$)/y;
+  let at = 0;
+  while (at < body.length) {
+    pair.lastIndex = at;
+    const match = pair.exec(body);
+    if (!match) return { name: id, labels: {} };
+    labels[match[1]] = match[2].replace(/\\(.)/g, '$1');
+    at = pair.lastIndex;
+  }
+  return { name: id.slice(0, open), labels };
+}
+
 /** Kind implied by a metric name alone: `_total` marks a counter (Prometheus naming guide). */
 export function inferKindFromName(name: string): SeriesKind {
   return /_total$/.test(name) ? 'counter' : 'gauge';
