@@ -12,7 +12,7 @@ import { encodeMetricWindows } from '../extension/core/model/encode';
 import { CLASSES } from '../extension/core/model/types';
 import { loadClassifierModel } from '../extension/runtime/onnxRunner';
 import { computeArgmaxRows, computeClassScores, computeConfusionMatrix, computeEce, computeMacroF1 } from './metrics';
-import { buildSplits, type TrainingExample } from './simulator';
+import { describeSplits, sampleExamples, type TrainingExample } from './simulator';
 import { computeFeatureNormalization, encodeExamples } from './buildDataset';
 import { DEFAULT_WINDOW_SPEC } from '../extension/core/model/encode';
 import { DEFAULT_SHAPE } from './setModel';
@@ -83,7 +83,7 @@ async function scoreBundledModel(test: readonly TrainingExample[], labels: Int32
   return { text, predicted, abstainRate, macroF1 };
 }
 
-async function scoreBaselineModels(splits: { train: TrainingExample[]; calibration: TrainingExample[]; test: TrainingExample[] }, trainLimit: number | undefined, log: (s: string) => void): Promise<Scored[]> {
+async function scoreBaselineModels(splits: { train: TrainingExample[]; calibration: TrainingExample[]; test: TrainingExample[] }, trainTotal: number, log: (s: string) => void): Promise<Scored[]> {
   // Loaded by path so evaluation still runs (and says so) while the baselines are being built.
   const modulePath = './baselines';
   let mod: { scoreBaselines?: (split: unknown, options?: unknown) => Promise<Array<{ name: string; predicted: Int32Array }>> };
@@ -94,13 +94,13 @@ async function scoreBaselineModels(splits: { train: TrainingExample[]; calibrati
     return [];
   }
   if (!mod.scoreBaselines) return [];
-  const train = trainLimit !== undefined ? splits.train.slice(0, trainLimit) : splits.train;
+  const train = splits.train;
   const epochsAt = process.argv.indexOf('--baseline-epochs');
   const epochs = epochsAt >= 0 ? Number(process.argv[epochsAt + 1]) : undefined;
   const onlyAt = process.argv.indexOf('--baselines');
   const only = onlyAt >= 0 ? parseBaselineKinds(process.argv[onlyAt + 1]) : undefined;
   const results = await mod.scoreBaselines({ train, calibration: splits.calibration, test: splits.test }, { log, epochs, ...(only ? { only } : {}) });
-  const note = `trained on ${train.length === splits.train.length ? 'all' : `the first ${train.length} of`} ${splits.train.length} training examples${epochs !== undefined ? `, ${epochs} epochs` : ''}`;
+  const note = `trained on ${train.length === trainTotal ? 'all' : `the first ${train.length} of`} ${trainTotal} training examples${epochs !== undefined ? `, ${epochs} epochs` : ''}`;
   return results.map((r) => ({ name: r.name, predicted: r.predicted, note }));
 }
 
@@ -129,16 +129,24 @@ async function main(): Promise<void> {
     return;
   }
   const log = (s: string): void => { process.stderr.write(`${s}\n`); };
-  const spec = JSON.parse(readFileSync(join(MODEL_DIR, 'classifier.json'), 'utf8')) as { training: { seed: number; trainCount: number; calibrationCount: number; testCount: number; epochs: number } };
+  const spec = JSON.parse(readFileSync(join(MODEL_DIR, 'classifier.json'), 'utf8')) as { training: { seed: number; trainCount: number; calibrationCount: number; testCount: number; epochs: number; trainSystems?: number } };
   const t = spec.training;
+  const limitAt = argv.indexOf('--baseline-train');
+  const limit = limitAt >= 0 ? Number(argv[limitAt + 1]) : undefined;
+  if (limit !== undefined && !(Number.isInteger(limit) && limit > 0)) throw new Error(`--baseline-train: expected a positive integer, got ${argv[limitAt + 1]}`);
+  const isBaselineRun = !argv.includes('--no-baselines');
   log(`rebuilding splits (seed ${t.seed})`);
-  const splits = buildSplits(t.seed, { trainCount: t.trainCount, calibrationCount: t.calibrationCount, testCount: t.testCount });
+  const described = describeSplits(t.seed, { trainCount: t.trainCount, calibrationCount: t.calibrationCount, testCount: t.testCount, ...(t.trainSystems ? { trainSystems: t.trainSystems } : {}) });
+  // Only the training examples the baselines see are drawn (the first ones of the recipe's split).
+  const splits = {
+    train: isBaselineRun ? sampleExamples({ ...described.train, count: Math.min(limit ?? t.trainCount, t.trainCount) }) : [],
+    calibration: isBaselineRun ? sampleExamples(described.calibration) : [],
+    test: sampleExamples(described.test),
+  };
   const test = splits.test.filter((e) => (CLASSES as readonly string[]).includes(e.label));
   const labels = Int32Array.from(test, (e) => CLASSES.indexOf(e.label as (typeof CLASSES)[number]));
   const ours = await scoreBundledModel(test, labels);
-  const limitAt = argv.indexOf('--baseline-train');
-  const limit = limitAt >= 0 ? Number(argv[limitAt + 1]) : undefined;
-  const baselines = argv.includes('--no-baselines') ? [] : await scoreBaselineModels({ ...splits, test }, limit, log);
+  const baselines = isBaselineRun ? await scoreBaselineModels({ ...splits, test }, t.trainCount, log) : [];
   const sameData: Scored[] = [];
   if (limit !== undefined && baselines.length > 0) {
     log(`retraining our architecture on the same ${limit} examples`);
@@ -150,7 +158,7 @@ async function main(): Promise<void> {
       sameData.push({ name: 'ours, same training subset and epochs as the baselines', predicted: await scoreOursOnSubset(splits.train.slice(0, limit), test, baselineEpochs, spec.training.seed), note: `trained on the first ${limit} training examples, ${baselineEpochs} epochs` });
     }
   }
-  const rows = [{ name: 'ours: family-pooled set model (bundled ONNX)', predicted: ours.predicted, note: `trained on all ${splits.train.length} training examples, ${spec.training.epochs} epochs` as string | undefined }, ...sameData, ...baselines].map((r) => {
+  const rows = [{ name: 'ours: family-pooled set model (bundled ONNX)', predicted: ours.predicted, note: `trained on all ${t.trainCount} training examples from ${t.trainSystems ?? 300} systems, ${spec.training.epochs} epochs` as string | undefined }, ...sameData, ...baselines].map((r) => {
     const confusion = computeConfusionMatrix(labels, r.predicted, CLASSES.length);
     const correct = Array.from(r.predicted).filter((p, i) => p === labels[i]).length;
     return [r.name, f3(computeMacroF1(confusion)), f3(correct / labels.length), r.note ?? ''];

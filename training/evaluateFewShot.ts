@@ -33,7 +33,7 @@ import { calibrateCompetition, computeEpisodeSimilarities, describeCompetition, 
 import { computeMetricSignature } from '../extension/core/model/librarySignature';
 import { DEFAULT_COMPETITION_OPTIONS, type CompetitionOptions } from '../extension/core/model/librarySignatureVerdict';
 import { join } from 'node:path';
-import { buildFewShotSplits, buildSplits, buildSystemSpec, drawSystemSeeds, HELD_OUT_CLASSES, mixSeeds, sampleExamples, type SimClass, type TrainingExample } from './simulator';
+import { buildFewShotSplits, buildSplits, buildSystemSpec, DEFAULT_TRAIN_SYSTEMS, drawSystemSeeds, HELD_OUT_CLASSES, mixSeeds, sampleExamples, type SimClass, type TrainingExample } from './simulator';
 
 /** The bundled model seen as: calibrated probabilities over CLASSES and an embedding per example. */
 interface Embedder {
@@ -147,7 +147,7 @@ function toStoredMetrics(example: TrainingExample): MetricWindow[] {
   const entry = createLibraryEntry({
     id: 'eval', label: example.label, window: { startMs: 0, endMs: 0 }, baseline: { startMs: 0, endMs: 0 },
     exportSha256: '0'.repeat(64), exportFile: example.systemId, createdMs: 0, modelVersion: 'eval', embedding: [0],
-    metrics: example.metrics.map((m) => ({ ...m, name: m.id })),
+    metrics: example.metrics.map((m) => ({ ...m, name: m.name ?? m.id })),
   });
   return toMetricWindows(entry);
 }
@@ -171,6 +171,13 @@ function readTrainingSeed(modelDir: string): number {
   return seed;
 }
 
+/** How many systems the bundled model's train split used (their seeds are reserved here too). */
+function readTrainSystems(modelDir: string): number {
+  const json = JSON.parse(readFileSync(join(modelDir, 'classifier.json'), 'utf8')) as { training?: { trainSystems?: unknown } };
+  const count = json.training?.trainSystems;
+  return typeof count === 'number' && Number.isInteger(count) && count > 0 ? count : DEFAULT_TRAIN_SYSTEMS;
+}
+
 /** Split groups (or, for one group, its held-out queries by system) into calibration and report halves. */
 function splitInHalves(groups: readonly EvaluationGroup[]): [EvaluationGroup[], EvaluationGroup[]] {
   if (groups.length > 1) return [groups.filter((_, i) => i % 2 === 0), groups.filter((_, i) => i % 2 === 1)];
@@ -186,9 +193,9 @@ function splitInHalves(groups: readonly EvaluationGroup[]): [EvaluationGroup[], 
 }
 
 /** Cross-system protocol: support and queries from disjoint systems (buildFewShotSplits). */
-async function buildCrossSystemGroups(embedder: Embedder, seed: number): Promise<{ groups: EvaluationGroup[]; rawSupport: TrainingExample[] }> {
-  const fewShot = buildFewShotSplits(seed, { supportPerClass: 20, queryPerClass: 150 });
-  const builtIn = buildSplits(seed, { trainCount: 0, calibrationCount: 0, testCount: 1500 }).test;
+async function buildCrossSystemGroups(embedder: Embedder, seed: number, trainSystems: number): Promise<{ groups: EvaluationGroup[]; rawSupport: TrainingExample[] }> {
+  const fewShot = buildFewShotSplits(seed, { supportPerClass: 20, queryPerClass: 150, trainSystems });
+  const builtIn = buildSplits(seed, { trainCount: 0, calibrationCount: 0, testCount: 1500, trainSystems }).test;
   const [support, heldOut, builtInEmbedded] = [await embedExamples(embedder, fewShot.support), await embedExamples(embedder, fewShot.query), await embedExamples(embedder, builtIn)];
   return { groups: [{ support, heldOut, builtIn: builtInEmbedded }], rawSupport: fewShot.support };
 }
@@ -204,9 +211,9 @@ function hasKeyMetricsOfBothHeldOutTypes(systemSeed: number): boolean {
  * built-in incidents, plus 40 of its own built-in incidents the library may hold. With
  * `isKeyMetricsOnly`, the first `systemCount` systems that export a key metric of both held-out types.
  */
-async function buildSameSystemGroups(embedder: Embedder, seed: number, systemCount: number, isKeyMetricsOnly: boolean): Promise<EvaluationGroup[]> {
+async function buildSameSystemGroups(embedder: Embedder, seed: number, trainSystems: number, systemCount: number, isKeyMetricsOnly: boolean): Promise<EvaluationGroup[]> {
   const taken = new Set<number>();
-  for (const [split, count] of [[1, 300], [2, 80], [3, 80], [4, 20], [5, 60]] as const) drawSystemSeeds(seed, split, count, taken);
+  for (const [split, count] of [[1, trainSystems], [2, 80], [3, 80], [4, 20], [5, 60]] as const) drawSystemSeeds(seed, split, count, taken);
   const systems = isKeyMetricsOnly
     ? drawSystemSeeds(seed, 6, 600, taken).filter(hasKeyMetricsOfBothHeldOutTypes).slice(0, systemCount)
     : drawSystemSeeds(seed, 6, systemCount, taken);
@@ -260,14 +267,15 @@ export async function runFewShotEvaluation(argv: readonly string[]): Promise<voi
   const seed = args.seed ?? readTrainingSeed(args.modelDir);
   const embedder = await loadEmbedder(args.modelDir);
   process.stdout.write(`# Few-shot evaluation: model ${embedder.modelVersion}, seed ${seed}, ${args.episodes} episodes per k, calibration budget ${args.budget} macro-F1 points\n`);
-  const cross = await buildCrossSystemGroups(embedder, seed);
+  const trainSystems = readTrainSystems(args.modelDir);
+  const cross = await buildCrossSystemGroups(embedder, seed, trainSystems);
   const [crossCalibration, crossReport] = splitInHalves(cross.groups);
   writeTable('New systems (support and queries from disjoint simulated systems)', crossCalibration, crossReport, HELD_OUT_CLASSES, args);
-  const same = await buildSameSystemGroups(embedder, seed, 48, false);
+  const same = await buildSameSystemGroups(embedder, seed, trainSystems, 48, false);
   const [sameCalibration, sameReport] = splitInHalves(same);
   writeTable('Same systems (each team labels and meets incidents of its own service)', withoutBuiltInSupport(sameCalibration), withoutBuiltInSupport(sameReport), HELD_OUT_CLASSES, args);
   writeTable('Same systems, library also holds k of the team\'s incidents per built-in class', sameCalibration, sameReport, HELD_OUT_CLASSES, args);
-  const [keyCalibration, keyReport] = splitInHalves(await buildSameSystemGroups(embedder, seed, 48, true));
+  const [keyCalibration, keyReport] = splitInHalves(await buildSameSystemGroups(embedder, seed, trainSystems, 48, true));
   writeTable('Same systems exporting a key metric of both held-out types, library also holds k built-in incidents per class', keyCalibration, keyReport, HELD_OUT_CLASSES, args);
   // Product defaults: one setting for teams whose library holds only their own labels and teams whose
   // library also holds their incidents of built-in kinds — calibrated on both calibration halves pooled.

@@ -5,7 +5,7 @@
  */
 import { CLASSES } from '../../extension/core/model/types';
 import { mixSeeds } from './random';
-import { sampleExamples, type Difficulty } from './sampleExamples';
+import { sampleExamples, type Difficulty, type SampleOptions } from './sampleExamples';
 import type { HeldOutClass, TrainingExample } from './types';
 
 export interface SplitOptions {
@@ -45,22 +45,38 @@ export function drawSystemSeeds(seed: number, split: number, count: number, take
   return seeds;
 }
 
-/** Built-in classes only, balanced; defaults 6,000 / 1,500 / 1,500 examples. */
-export function buildSplits(seed: number, options: SplitOptions = {}): Splits {
+/** Systems of the train split unless SplitOptions say otherwise. */
+export const DEFAULT_TRAIN_SYSTEMS = 300;
+
+/**
+ * What buildSplits draws, as sampleExamples options: a caller can draw the (large) train split in
+ * chunks with `firstIndex` and encode each chunk as it goes, instead of holding it all.
+ */
+export function describeSplits(seed: number, options: SplitOptions = {}): { readonly train: SampleOptions; readonly calibration: SampleOptions; readonly test: SampleOptions } {
   const taken = new Set<number>();
-  const trainSeeds = drawSystemSeeds(seed, 1, options.trainSystems ?? 300, taken);
+  const trainSeeds = drawSystemSeeds(seed, 1, options.trainSystems ?? DEFAULT_TRAIN_SYSTEMS, taken);
   const calibrationSeeds = drawSystemSeeds(seed, 2, options.calibrationSystems ?? 80, taken);
   const testSeeds = drawSystemSeeds(seed, 3, options.testSystems ?? 80, taken);
+  const trainDifficulty = options.trainDifficulty ?? options.difficulty;
+  const difficulty = options.difficulty;
   return {
-    train: sampleExamples({ seed: mixSeeds(seed, 11), count: options.trainCount ?? 6000, systemSeeds: trainSeeds, classes: CLASSES, difficulty: options.trainDifficulty ?? options.difficulty }),
-    calibration: sampleExamples({ seed: mixSeeds(seed, 12), count: options.calibrationCount ?? 1500, systemSeeds: calibrationSeeds, classes: CLASSES, difficulty: options.difficulty }),
-    test: sampleExamples({ seed: mixSeeds(seed, 13), count: options.testCount ?? 1500, systemSeeds: testSeeds, classes: CLASSES, difficulty: options.difficulty }),
+    train: { seed: mixSeeds(seed, 11), count: options.trainCount ?? 6000, systemSeeds: trainSeeds, classes: CLASSES, ...(trainDifficulty ? { difficulty: trainDifficulty } : {}) },
+    calibration: { seed: mixSeeds(seed, 12), count: options.calibrationCount ?? 1500, systemSeeds: calibrationSeeds, classes: CLASSES, ...(difficulty ? { difficulty } : {}) },
+    test: { seed: mixSeeds(seed, 13), count: options.testCount ?? 1500, systemSeeds: testSeeds, classes: CLASSES, ...(difficulty ? { difficulty } : {}) },
   };
+}
+
+/** Built-in classes only, balanced; defaults 6,000 / 1,500 / 1,500 examples. */
+export function buildSplits(seed: number, options: SplitOptions = {}): Splits {
+  const described = describeSplits(seed, options);
+  return { train: sampleExamples(described.train), calibration: sampleExamples(described.calibration), test: sampleExamples(described.test) };
 }
 
 export interface FewShotOptions {
   readonly supportPerClass?: number;
   readonly queryPerClass?: number;
+  /** Systems of the main train split whose seeds are reserved (default DEFAULT_TRAIN_SYSTEMS). */
+  readonly trainSystems?: number;
 }
 
 export interface FewShotSplits {
@@ -75,7 +91,7 @@ export interface FewShotSplits {
 export function buildFewShotSplits(seed: number, options: FewShotOptions = {}): FewShotSplits {
   const taken = new Set<number>();
   // Reserve the main splits' seeds so few-shot systems are new to the trained model as well.
-  drawSystemSeeds(seed, 1, 300, taken);
+  drawSystemSeeds(seed, 1, options.trainSystems ?? DEFAULT_TRAIN_SYSTEMS, taken);
   drawSystemSeeds(seed, 2, 80, taken);
   drawSystemSeeds(seed, 3, 80, taken);
   const supportSeeds = drawSystemSeeds(seed, 4, 20, taken);

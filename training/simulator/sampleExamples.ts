@@ -25,6 +25,11 @@ export interface SampleOptions {
   /** Inclusive range of baseline lengths in steps; default [3, 720]. */
   readonly baselineSteps?: readonly [number, number];
   readonly difficulty?: Difficulty;
+  /**
+   * Index of the first example to draw (default 0): examples [firstIndex, firstIndex + count) are
+   * those of one call drawing firstIndex + count, so a large set can be drawn in chunks.
+   */
+  readonly firstIndex?: number;
 }
 
 /**
@@ -269,6 +274,8 @@ function drawExample(spec: SystemSpec, label: SimClass, rng: Random, windowRange
     const values = sources[k] as Float64Array;
     metrics.push({
       id: (kept[k] as SeriesSpec).id,
+      name: s.name,
+      labels: s.labels,
       family: inferSpecFamily(kept[k] as SeriesSpec),
       baseline: copyRange(values, layout.baselineStart, baselineEnd),
       window: copyRange(values, layout.windowStart, windowEnd),
@@ -290,13 +297,15 @@ export function sampleExamples(options: SampleOptions): TrainingExample[] {
   if (classes.length === 0) throw new Error('sampleExamples: expected at least one class, got 0');
   if (options.systemSeeds.length === 0) throw new Error('sampleExamples: expected at least one system seed, got 0');
   if (!Number.isInteger(options.count) || options.count < 0) throw new Error(`sampleExamples: expected count as a non-negative integer, got ${options.count}`);
+  const firstIndex = options.firstIndex ?? 0;
+  if (!Number.isInteger(firstIndex) || firstIndex < 0) throw new Error(`sampleExamples: expected firstIndex as a non-negative integer, got ${firstIndex}`);
   validateRange('windowSteps', windowRange);
   validateRange('baselineSteps', baselineRange);
   const knobs = resolveDifficulty(options.difficulty);
   const slab = new ValueSlab();
   const specs = new Map<number, SystemSpec>();
   const examples: TrainingExample[] = [];
-  for (let i = 0; i < options.count; i += 1) {
+  for (let i = firstIndex; i < firstIndex + options.count; i += 1) {
     const rng = createRandom(mixSeeds(options.seed, i, 0xe1a));
     const systemSeed = rng.pick(options.systemSeeds);
     let spec = specs.get(systemSeed);

@@ -33,10 +33,16 @@ export interface ModelOutput {
   readonly embeddingSize: number;
 }
 
-/** One metric's data for the classifier: its baseline and window samples (NaN = gap). */
+/**
+ * One metric's data for the classifier: its baseline and window samples (NaN = gap). `name` and
+ * `labels` feed the name hints (vantage, polarity); without them they are read from `id` (see
+ * parseSeriesId).
+ */
 export interface MetricWindow {
   readonly id: string;
   readonly family: Family;
+  readonly name?: string;
+  readonly labels?: Readonly<Record<string, string>>;
   readonly baseline: Float64Array;
   readonly window: Float64Array;
 }

@@ -2,7 +2,7 @@ import assert from 'node:assert/strict';
 import { inferFamily } from '../../../extension/core/frame/families';
 import { CLASSES } from '../../../extension/core/model/types';
 import {
-  buildFewShotSplits, buildSplits, convertCounterToRates, generateSystem, sampleExamples,
+  buildFewShotSplits, buildSplits, convertCounterToRates, describeSplits, generateSystem, sampleExamples,
   type TrainingExample,
 } from '../../../training/simulator';
 import { inverseNormalCdf, createRandom } from '../../../training/simulator/random';
@@ -139,6 +139,16 @@ describe('simulator: splits', () => {
     for (const id of cal) assert.ok(!train.has(id) && !test.has(id), id);
     for (const id of test) assert.ok(!train.has(id), id);
     assert.ok(splits.train.every((e) => (CLASSES as readonly string[]).includes(e.label)));
+  });
+
+  it('draws a split in chunks (firstIndex) exactly as in one call', () => {
+    const described = describeSplits(9, { trainCount: 50, trainSystems: 12 });
+    const whole = sampleExamples(described.train);
+    const chunks = [0, 17, 34].flatMap((first) => sampleExamples({ ...described.train, firstIndex: first, count: Math.min(17, 50 - first) }));
+    const summary = (xs: readonly TrainingExample[]): unknown[] => xs.map((e) => [e.label, e.systemId, e.metrics.map((m) => [m.id, Array.from(m.baseline), Array.from(m.window)])]);
+    assert.deepEqual(summary(chunks), summary(whole));
+    assert.deepEqual(summary(buildSplits(9, { trainCount: 50, trainSystems: 12, calibrationCount: 0, testCount: 0 }).train), summary(whole));
+    assert.throws(() => sampleExamples({ ...described.train, firstIndex: -1 }), /firstIndex as a non-negative integer, got -1/);
   });
 
   it('gives few-shot support and query of the held-out classes from disjoint systems', () => {
