@@ -142,7 +142,7 @@ async function labelWindow(deps: LibraryCommandDeps, givenLabel: string | undefi
   const nowMs = Date.now();
   // Prefer the editor's embedding: it is what the verdict was computed from (full resolution).
   const embedding = active.embedding ?? await model.embed(active.metrics.map((m) => ({
-    id: m.id, family: m.family, baseline: Float64Array.from(m.baseline), window: Float64Array.from(m.window),
+    id: m.id, name: m.name, family: m.family, baseline: Float64Array.from(m.baseline), window: Float64Array.from(m.window),
   })));
   const entry = createLibraryEntry({
     ...active, id: formatEntryId(nowMs, randomBytes(3).toString('hex')), label, createdMs: nowMs, modelVersion: model.modelVersion, embedding,

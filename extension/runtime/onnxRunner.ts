@@ -10,6 +10,7 @@ import { readFile } from 'node:fs/promises';
 import { join } from 'node:path';
 import type * as Ort from 'onnxruntime-node';
 import { parseClassifierSpec, type ClassifierSpec } from '../core/model/classifierSpec';
+import { getRowLength } from '../core/model/encode';
 import type { InferenceRunner, ModelOutput, NodeBatch } from '../core/model/types';
 
 /** A runner that can release its native session. */
@@ -77,7 +78,7 @@ export async function loadClassifierModel(modelDir: string): Promise<LoadedClass
   if (sha256 !== spec.sha256) {
     throw new Error(`${onnxPath}: model file sha256 ${sha256} does not match ${spec.sha256} recorded in classifier.json; refusing to load a model that was changed or replaced`);
   }
-  const rowLength = spec.windowSpec.sampleCount + 3;
+  const rowLength = getRowLength(spec.windowSpec);
   let session: Promise<Ort.InferenceSession> | null = null;
   let ort: typeof Ort | null = null;
   const getSession = (): Promise<Ort.InferenceSession> => {

@@ -107,7 +107,7 @@ function buildMetricWindows(frame: MetricFrame, incident: IndexWindow, baseline:
     const s = frame.series[i];
     if (!s) throw new RangeError(`series index: expected 0..${frame.series.length - 1}, got ${i}`);
     return {
-      id: s.id, family: s.family,
+      id: s.id, family: s.family, name: s.name, labels: s.labels,
       baseline: s.values.subarray(baseline.startIndex, baseline.endIndex + 1),
       window: coarsenWindow(s.values.subarray(incident.startIndex, incident.endIndex + 1), maxWindowSamples),
     };

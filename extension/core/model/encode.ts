@@ -1,14 +1,18 @@
 import { FAMILIES } from '../frame/types';
+import { NAME_HINT_SLOT_COUNT, writeNameHints } from '../frame/nameHints';
+import { parseSeriesId } from '../ingest/seriesAccumulator';
 import type { MetricWindow, NodeBatch } from './types';
 
 /**
  * How one metric's baseline + window become one node row of the model input.
- * Row layout (length `sampleCount + SUMMARY_SLOT_COUNT`):
+ * Row layout (length `sampleCount + SUMMARY_SLOT_COUNT + NAME_HINT_SLOT_COUNT`):
  *   [0, sampleCount)  window resampled to `sampleCount` points, each a squashed robust deviation
  *                     asinh((x − median_base) / scale_base), clipped to ±clip;
  *   sampleCount + 0   relative level change asinh((median_win − median_base) / max(|median_base|, scale)), clipped;
  *   sampleCount + 1   log2(window length in samples) / 9 (so 512 samples → 1);
- *   sampleCount + 2   log2(baseline length in samples) / 12.
+ *   sampleCount + 2   log2(baseline length in samples) / 12;
+ *   sampleCount + 3…  name hints (frame/nameHints.ts): vantage one-hot (server, client, edge),
+ *                     1 for an inverted metric (idle, free, success…), 1 for a tail percentile.
  * Every value is unit-free, so byte counters and ratios share one scale.
  */
 export interface WindowSpec {
@@ -45,9 +49,26 @@ export const DEFAULT_WINDOW_SPEC: WindowSpec = {
   clip: 7,
 };
 
-/** Row length (values per node) for a spec: samples plus summary slots. */
+/** Row length (values per node) for a spec: samples, summary slots and name-hint slots. */
 export function getRowLength(spec: WindowSpec = DEFAULT_WINDOW_SPEC): number {
-  return spec.sampleCount + SUMMARY_SLOT_COUNT;
+  return spec.sampleCount + SUMMARY_SLOT_COUNT + NAME_HINT_SLOT_COUNT;
+}
+
+// Name hints per metric (id + name): a timeline encodes the same metrics thousands of times.
+const hintCache = new Map<string, Float32Array>();
+const HINT_CACHE_LIMIT = 20_000;
+
+function findNameHints(metric: MetricWindow): Float32Array {
+  const key = metric.name === undefined ? metric.id : `${metric.id}\u0000${metric.name}`;
+  let hints = hintCache.get(key);
+  if (!hints) {
+    const parsed = metric.name === undefined ? parseSeriesId(metric.id) : { name: metric.name, labels: metric.labels ?? parseSeriesId(metric.id).labels };
+    hints = new Float32Array(NAME_HINT_SLOT_COUNT);
+    writeNameHints(parsed.name, parsed.labels, hints, 0);
+    if (hintCache.size >= HINT_CACHE_LIMIT) hintCache.clear();
+    hintCache.set(key, hints);
+  }
+  return hints;
 }
 
 /** Robust location/scale of a sample set, ignoring NaN. */
@@ -199,6 +220,7 @@ export function encodeMetricRow(metric: MetricWindow, spec: WindowSpec, row: Flo
   row[spec.sampleCount] = squash((windowMedian - base.median) / levelScale, spec.clip);
   row[spec.sampleCount + 1] = Math.log2(windowLength) / 9;
   row[spec.sampleCount + 2] = Math.log2(Math.max(1, metric.baseline.length)) / 12;
+  row.set(findNameHints(metric), spec.sampleCount + SUMMARY_SLOT_COUNT);
   return true;
 }
 

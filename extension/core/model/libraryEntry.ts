@@ -119,7 +119,7 @@ export function isBuiltInClassLabel(label: string): boolean {
 /** The stored metrics as classifier input (null → NaN gap), in stored order. */
 export function toMetricWindows(entry: LibraryEntry): MetricWindow[] {
   const toArray = (values: readonly (number | null)[]): Float64Array => Float64Array.from(values, (v) => (v === null ? Number.NaN : v));
-  return entry.metrics.map((m) => ({ id: m.id, family: m.family, baseline: toArray(m.baseline), window: toArray(m.window) }));
+  return entry.metrics.map((m) => ({ id: m.id, name: m.name, family: m.family, baseline: toArray(m.baseline), window: toArray(m.window) }));
 }
 
 /** Embeds stored metrics with the current model (the classifier's embedding output for one window). */

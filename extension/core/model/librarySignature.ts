@@ -10,16 +10,16 @@ import type { Family } from '../frame/types';
 import { DEFAULT_WINDOW_SPEC, encodeMetricWindows, type WindowSpec } from './encode';
 import { downsampleForLibrary } from './libraryEntry';
 import { LIBRARY_MAX_POINTS } from './libraryTypes';
-import { computeNodeFeatures, NODE_FEATURE_COUNT } from './temporalFeatures';
+import { computeNodeFeatures, MAX_FEATURE, NODE_FEATURE_COUNT } from './temporalFeatures';
 import type { MetricWindow } from './types';
 
 /**
  * Node features kept in a signature (indices into computeNodeFeatures' output): the window mean,
- * the four quarter means (onset, persistence, recovery) and max/min. Chosen by the lead's
- * same-system experiments (.cache/scratch/rules.ts); all are in squashed robust-z units
+ * the four quarter means (onset, persistence, recovery) and max/min. Chosen on the same-services
+ * protocol of the few-shot evaluation; all are in squashed robust-z units
  * (asinh of deviations from the baseline median, in baseline robust scales).
  */
-export const SIGNATURE_FEATURES: readonly number[] = [0, 1, 2, 3, 4, 12, 13];
+export const SIGNATURE_FEATURES: readonly number[] = [0, 1, 2, 3, 4, MAX_FEATURE, MAX_FEATURE + 1];
 
 /** One metric's data as a signature needs it: MetricWindow, LibraryMetricInput and stored entries all fit. */
 export interface SignatureMetric {

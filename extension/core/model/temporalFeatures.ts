@@ -1,4 +1,5 @@
-import { getRowLength, type WindowSpec } from './encode';
+import { getRowLength, SUMMARY_SLOT_COUNT, type WindowSpec } from './encode';
+import { NAME_HINT_SLOT_COUNT } from '../frame/nameHints';
 
 /**
  * The frozen per-metric temporal transform: a fixed, deterministic map from one encoded node row
@@ -10,15 +11,19 @@ import { getRowLength, type WindowSpec } from './encode';
  *   5      least-squares slope over the window (per window length, unit: squashed z per window)
  *   6..8   DCT-II coefficients k = 1, 2, 3 (coarse shape)
  *   9..11  the summary slots (relative level, window length code, baseline length code)
- *   12, 13 max, min of the samples
- *   14, 15 mean of positive part, mean of negative part
- *   16     mean absolute first difference (roughness: spikes, flapping)
- *   17..20 fraction of samples above +a, above +b, below −a, below −b (a, b = FRACTION_THRESHOLDS)
+ *   12..16 the name hints (vantage server, client, edge; inverted polarity; tail percentile), passed through
+ *   17, 18 max, min of the samples
+ *   19, 20 mean of positive part, mean of negative part
+ *   21     mean absolute first difference (roughness: spikes, flapping)
+ *   22..25 fraction of samples above +a, above +b, below −a, below −b (a, b = FRACTION_THRESHOLDS)
  */
-export const NODE_FEATURE_COUNT = 21;
+export const NODE_FEATURE_COUNT = 9 + SUMMARY_SLOT_COUNT + NAME_HINT_SLOT_COUNT + 9;
 
 /** Number of leading features computed by the linear projection (see {@link buildLinearProjection}). */
-export const LINEAR_FEATURE_COUNT = 12;
+export const LINEAR_FEATURE_COUNT = NODE_FEATURE_COUNT - 9;
+
+/** Index of the first feature after the linear ones: max of the samples. */
+export const MAX_FEATURE = LINEAR_FEATURE_COUNT;
 
 /** Thresholds (in squashed units: asinh(z)) of the exceedance fractions; asinh(z)=1.5 ↔ z≈2.1, 3 ↔ z≈10. */
 export const FRACTION_THRESHOLDS: readonly [number, number] = [1.5, 3];
@@ -84,12 +89,13 @@ export function computeNodeFeatures(values: Float32Array, rowCount: number, spec
       if (x < -a) counts[2]++;
       if (x < -b) counts[3]++;
     }
-    out[o + 12] = max;
-    out[o + 13] = min;
-    out[o + 14] = pos / s;
-    out[o + 15] = neg / s;
-    out[o + 16] = rough / (s - 1);
-    for (let c = 0; c < 4; c++) out[o + 17 + c] = counts[c] / s;
+    const m = o + MAX_FEATURE;
+    out[m] = max;
+    out[m + 1] = min;
+    out[m + 2] = pos / s;
+    out[m + 3] = neg / s;
+    out[m + 4] = rough / (s - 1);
+    for (let c = 0; c < 4; c++) out[m + 5 + c] = counts[c] / s;
   }
   return out;
 }

@@ -1,7 +1,8 @@
 import { strict as assert } from 'node:assert';
 import {
-  computeRobustStats, DEFAULT_WINDOW_SPEC, encodeBatch, encodeMetricWindows, getRowLength, resampleWindow,
+  computeRobustStats, DEFAULT_WINDOW_SPEC, encodeBatch, encodeMetricWindows, getRowLength, resampleWindow, SUMMARY_SLOT_COUNT,
 } from '../../../extension/core/model/encode';
+import { NAME_HINT_SLOT_COUNT } from '../../../extension/core/frame/nameHints';
 import type { MetricWindow } from '../../../extension/core/model/types';
 
 const W = DEFAULT_WINDOW_SPEC.sampleCount;
@@ -89,6 +90,21 @@ describe('encode: rows', () => {
     const batch = encodeBatch([[m], [m, m, m]]);
     assert.equal(batch.nodeCount, 3);
     assert.deepEqual(Array.from(batch.mask), [1, 0, 0, 1, 1, 1]);
+  });
+
+  it('writes the name hints after the summary slots, from name and labels or else from the series id', () => {
+    const hintsAt = W + SUMMARY_SLOT_COUNT;
+    const hints = (m: MetricWindow): number[] => {
+      const batch = encodeMetricWindows([m]);
+      return Array.from(batch.values.subarray(hintsAt, hintsAt + NAME_HINT_SLOT_COUNT));
+    };
+    const base = [1, 2, 3, 4];
+    const win = [5, 6, 7];
+    // node_cpu_seconds_total{mode="idle"}: the node exporter's idle CPU (REFERENCE.md §2) falls when the host gets busy.
+    assert.deepEqual(hints(metric('node_cpu_seconds_total{cpu="0",mode="idle"}', base, win)), [0, 0, 0, 1, 0]);
+    assert.deepEqual(hints({ ...metric('x', base, win), name: 'http.client.request.duration', labels: { quantile: '0.99' } }), [0, 1, 0, 0, 1]);
+    assert.deepEqual(hints(metric('http.server.request.duration', base, win)), [1, 0, 0, 0, 0]);
+    assert.equal(getRowLength(), W + SUMMARY_SLOT_COUNT + NAME_HINT_SLOT_COUNT);
   });
 
   it('refuses a window longer than the spec allows, naming the metric and both lengths', () => {
