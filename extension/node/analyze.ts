@@ -133,7 +133,8 @@ export async function analyzeExport(path: string, options: AnalyzeOptions): Prom
   const verdict = await classifier.classifyWindow(frame, windows.incident, windows.baseline, { abstainThreshold });
   if (options.isCancelled?.()) throw new AnalysisError('cancelled');
   progress(0.6, 'Timeline');
-  const timelinePoints = await classifier.timeline(frame, { isCancelled: options.isCancelled, windowSteps: options.timelineWindowSteps, strideSteps: options.timelineStrideSteps });
+  // Windows after the incident are compared with the quiet period before it, not with the incident.
+  const timelinePoints = await classifier.timeline(frame, { isCancelled: options.isCancelled, windowSteps: options.timelineWindowSteps, strideSteps: options.timelineStrideSteps, excludeFromBaseline: [windows.incident] });
   progress(0.75, 'Explaining');
   const value = classifier.createSubsetValue(frame, windows.incident, windows.baseline, verdict.classIndex);
   const shapley = await computeShapley(frame.series.length, value, { timeBudgetMs: options.shapleyBudgetMs ?? 1000, seed: 1 });

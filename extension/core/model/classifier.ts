@@ -2,6 +2,7 @@ import type { IndexWindow, MetricFrame } from '../frame/types';
 import type { ClassifierSpec } from './classifierSpec';
 import { encodeBatch, encodeMetricWindows } from './encode';
 import type { InferenceRunner, MetricWindow, NodeBatch } from './types';
+import { chooseTimelineBaseline, gatherRanges } from './timelineBaseline';
 
 /** One class with its calibrated probability. */
 export interface ClassProbability {
@@ -53,6 +54,12 @@ export interface TimelineOptions {
   readonly strideSteps?: number;
   /** Baseline length in steps before each window (default 60; shorter near the start, never under minBaselineSamples). */
   readonly baselineSteps?: number;
+  /**
+   * Grid ranges no baseline may use (the incident under review): a window's baseline skips them
+   * and reaches further back, so the recovery after an incident is compared with the quiet period
+   * before it rather than with the incident (see chooseTimelineBaseline).
+   */
+  readonly excludeFromBaseline?: readonly IndexWindow[];
   readonly isCancelled?: () => boolean;
 }
 
@@ -102,13 +109,15 @@ export function coarsenWindow(values: Float64Array, maxSamples: number): Float64
   return out;
 }
 
-function buildMetricWindows(frame: MetricFrame, incident: IndexWindow, baseline: IndexWindow, indices: readonly number[], maxWindowSamples: number): MetricWindow[] {
+/** The metrics of one window; the baseline is one grid range or several (in time order). */
+function buildMetricWindows(frame: MetricFrame, incident: IndexWindow, baseline: IndexWindow | readonly IndexWindow[], indices: readonly number[], maxWindowSamples: number): MetricWindow[] {
+  const ranges = 'startIndex' in baseline ? [baseline] : baseline;
   return indices.map((i) => {
     const s = frame.series[i];
     if (!s) throw new RangeError(`series index: expected 0..${frame.series.length - 1}, got ${i}`);
     return {
       id: s.id, family: s.family, name: s.name, labels: s.labels,
-      baseline: s.values.subarray(baseline.startIndex, baseline.endIndex + 1),
+      baseline: gatherRanges(s.values, ranges),
       window: coarsenWindow(s.values.subarray(incident.startIndex, incident.endIndex + 1), maxWindowSamples),
     };
   });
@@ -205,7 +214,7 @@ export function createClassifier(runner: InferenceRunner, spec: ClassifierSpec):
       const chunk = ends.slice(start, start + RUN_CHUNK);
       const examples = chunk.map((end) => {
         const incident = { startIndex: end - windowSteps + 1, endIndex: end };
-        const baseline = { startIndex: Math.max(0, incident.startIndex - baselineSteps), endIndex: incident.startIndex - 1 };
+        const baseline = chooseTimelineBaseline(incident.startIndex, baselineSteps, options.excludeFromBaseline ?? [], ws.minBaselineSamples);
         return buildMetricWindows(frame, incident, baseline, indices, ws.maxWindowSamples);
       });
       const batch = encodeBatch(examples, ws);

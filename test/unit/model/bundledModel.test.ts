@@ -145,4 +145,19 @@ describe('bundled classifier model (real ONNX, onnxruntime-node)', () => {
     }
     await assert.rejects(classifier.timeline(makeFrame(nab.slice(0, 2)), { isCancelled: () => true }), /cancelled/);
   });
+
+  it('compares timeline windows during and after an excluded incident with the steps before it', async () => {
+    const classifier = createClassifier(model.runner, model.spec);
+    const frame = makeFrame(nab.slice(0, 5));
+    const options = { windowSteps: 12, baselineSteps: 48 };
+    const plain = await classifier.timeline(frame, options);
+    const excluding = await classifier.timeline(frame, { ...options, excludeFromBaseline: [INCIDENT] });
+    const at = (points: typeof plain, end: number): Float64Array => points.find((p) => p.index === end)!.probabilities;
+    // A window inside the incident (steps 309..320): its baseline is the 48 steps before the incident, 252..299.
+    const inside = await classifier.classifyWindow(frame, { startIndex: 309, endIndex: 320 }, { startIndex: 252, endIndex: 299 });
+    at(excluding, 320).forEach((p, k) => assert.ok(Math.abs(p - inside.probabilities[k]) < 1e-6, `class ${k}`));
+    // Before the incident nothing changes; right after it the baseline differs from the plain trailing one.
+    assert.deepEqual(Array.from(at(excluding, 250)), Array.from(at(plain, 250)));
+    assert.notDeepEqual(Array.from(at(excluding, 335)), Array.from(at(plain, 335)));
+  });
 });
