@@ -14,6 +14,9 @@ import { createRandom, mixSeeds, type Random } from './random';
 import { renderSystem } from './renderSystem';
 import { buildSystemSpec, type SeriesSpec, type SystemSpec } from './systemSpec';
 import type { MetricTruth, SimClass, TrainingExample } from './types';
+import { resolveDifficulty, resolveDifficultyCached, type Difficulty, type ResolvedDifficulty } from './difficulty';
+
+export type { Difficulty } from './difficulty';
 
 export interface SampleOptions {
   readonly seed: number;
@@ -32,61 +35,8 @@ export interface SampleOptions {
   readonly firstIndex?: number;
 }
 
-/**
- * Knobs of what makes examples hard (and real). Defaults are the realistic setting; lowering them
- * gives cleaner data for curriculum training or for measuring what each costs.
- */
-export interface Difficulty {
-  /** Probability that all key metrics of the fault are missing from an example; default 0.15. */
-  readonly keyMetricDropProbability?: number;
-  /** Probability that an example loses a random 10–50 % of its metrics; default 0.35. */
-  readonly randomDropProbability?: number;
-  /** Share of faults with intensity 0.15–0.4 instead of 0.4–1; default 0.3. */
-  readonly weakFaultShare?: number;
-  /**
-   * Least fault evidence (measureFaultEvidence: how far the fault moved the most-moved exported
-   * metric, in baseline noise units) for a fault example; a draw below it is redrawn (a fault that
-   * moved nothing exported looks exactly like a quiet period). Default 3; 0 keeps every draw.
-   */
-  readonly minFaultEvidence?: number;
-}
-
-interface ResolvedDifficulty {
-  readonly keyMetricDropProbability: number;
-  readonly randomDropProbability: number;
-  readonly weakFaultShare: number;
-  readonly minFaultEvidence: number;
-}
-
 /** Draws per fault example before the last one is kept whatever its evidence (rare: see README). */
 const MAX_EVIDENCE_ATTEMPTS = 12;
-
-const resolvedCache = new WeakMap<Difficulty, ResolvedDifficulty>();
-let resolvedDefault: ResolvedDifficulty | undefined;
-/** resolveDifficulty, once per options object (it is resolved again for every example otherwise). */
-function resolveDifficultyCached(d: Difficulty | undefined): ResolvedDifficulty {
-  if (d === undefined) return (resolvedDefault ??= resolveDifficulty(undefined));
-  let resolved = resolvedCache.get(d);
-  if (!resolved) {
-    resolved = resolveDifficulty(d);
-    resolvedCache.set(d, resolved);
-  }
-  return resolved;
-}
-
-function resolveDifficulty(d: Difficulty | undefined): ResolvedDifficulty {
-  const resolved = {
-    keyMetricDropProbability: d?.keyMetricDropProbability ?? 0.15,
-    randomDropProbability: d?.randomDropProbability ?? 0.35,
-    weakFaultShare: d?.weakFaultShare ?? 0.3,
-  };
-  for (const [key, value] of Object.entries(resolved)) {
-    if (!(value >= 0 && value <= 1)) throw new Error(`sampleExamples: expected difficulty.${key} in [0, 1], got ${value}`);
-  }
-  const minFaultEvidence = d?.minFaultEvidence ?? 3;
-  if (!(minFaultEvidence >= 0 && Number.isFinite(minFaultEvidence))) throw new Error(`sampleExamples: expected difficulty.minFaultEvidence as a finite number >= 0, got ${minFaultEvidence}`);
-  return { ...resolved, minFaultEvidence };
-}
 
 /** Typical incident durations, ms (log-uniform between the bounds). */
 const DURATION_MS: Readonly<Record<SimClass, readonly [number, number]>> = {
