@@ -30,6 +30,7 @@ export async function encodeInWorkers(options: SampleOptions, workerCount = 2, c
         ask();
       });
       worker.on('error', reject);
+      worker.on('exit', (code: number) => reject(new Error(`dataset worker stopped (exit code ${code}) before its chunks were done`)));
       ask();
     })));
   } finally {

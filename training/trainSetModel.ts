@@ -67,6 +67,8 @@ function startWorkers(context: ShardContext, grads: readonly GradSet[]): { call:
   workers.forEach((worker, shard) => {
     worker.on('message', (message: { loss: number }) => { pending.get(shard)?.resolve(message.loss); pending.delete(shard); });
     worker.on('error', (error: Error) => { pending.get(shard)?.reject(error); pending.delete(shard); });
+    // A worker that stops while its shard is pending would otherwise leave the step waiting forever.
+    worker.on('exit', (code: number) => { pending.get(shard)?.reject(new Error(`trainer worker ${shard} stopped (exit code ${code}) while computing a shard`)); pending.delete(shard); });
   });
   return {
     call: (shard, epoch, from, to, scale) => new Promise<number>((resolve, reject) => {
