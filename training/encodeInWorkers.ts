@@ -4,19 +4,18 @@
  * (tested), only faster on more cores. The raw windows of a chunk never leave its worker.
  */
 import { join } from 'node:path';
-import { Worker } from 'node:worker_threads';
 import type { EncodedExample } from './buildDataset';
 import { unpackEncodedChunk, type PackedChunk } from './packEncodedChunk';
 import type { SampleOptions } from './simulator';
+import { startTsWorker } from './startTsWorker';
 
 export async function encodeInWorkers(options: SampleOptions, workerCount = 2, chunkSize = 2000): Promise<EncodedExample[]> {
   if (!Number.isInteger(workerCount) || workerCount < 1) throw new Error(`encodeInWorkers: expected workerCount as a positive integer, got ${workerCount}`);
   const starts: number[] = [];
   for (let first = 0; first < options.count; first += chunkSize) starts.push(first);
   const chunks = new Map<number, EncodedExample[]>();
-  const hook = require.resolve('tsx/cjs');
   const entry = join(__dirname, 'encodeWorker.ts');
-  const workers = Array.from({ length: Math.min(workerCount, Math.max(1, starts.length)) }, () => new Worker(`require(${JSON.stringify(hook)}); require(${JSON.stringify(entry)});`, { eval: true, workerData: { options } }));
+  const workers = Array.from({ length: Math.min(workerCount, Math.max(1, starts.length)) }, () => startTsWorker(entry, { options }));
   let next = 0;
   try {
     await Promise.all(workers.map((worker) => new Promise<void>((resolve, reject) => {

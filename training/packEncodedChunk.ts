@@ -1,6 +1,7 @@
 /**
- * Encoded examples as a few flat arrays, to move a chunk between threads without copying each
- * example's arrays; unpacking gives views into them.
+ * Encoded examples as a few flat arrays: to move a chunk between threads without copying each
+ * example's arrays (transferable), or to share a dataset with worker threads (shared memory).
+ * Unpacking gives views into them.
  */
 import { NODE_FEATURE_COUNT } from '../extension/core/model/temporalFeatures';
 import type { EncodedExample } from './buildDataset';
@@ -16,14 +17,19 @@ export interface PackedChunk {
   readonly systemIds: readonly string[];
 }
 
-export function packEncodedChunk(examples: readonly EncodedExample[]): PackedChunk {
-  const nodeStart = new Int32Array(examples.length + 1);
+function allocate<T extends Float32Array | Int32Array>(Type: { new (length: number): T; new (buffer: SharedArrayBuffer): T; readonly BYTES_PER_ELEMENT: number }, length: number, isShared: boolean): T {
+  return isShared ? new Type(new SharedArrayBuffer(length * Type.BYTES_PER_ELEMENT)) : new Type(length);
+}
+
+/** Packs `examples` (`featureCount` features per node) into fresh arrays, in shared memory when `isShared`. */
+export function packEncodedChunk(examples: readonly EncodedExample[], isShared = false, featureCount = NODE_FEATURE_COUNT): PackedChunk {
+  const nodeStart = allocate(Int32Array, examples.length + 1, isShared);
   examples.forEach((ex, i) => { nodeStart[i + 1] = nodeStart[i] + ex.mask.length; });
   const nodeCount = nodeStart[examples.length];
-  const featureCount = NODE_FEATURE_COUNT;
-  const features = new Float32Array(nodeCount * featureCount);
-  const familyIds = new Int32Array(nodeCount);
-  const mask = new Float32Array(nodeCount);
+  const features = allocate(Float32Array, nodeCount * featureCount, isShared);
+  const familyIds = allocate(Int32Array, nodeCount, isShared);
+  const mask = allocate(Float32Array, nodeCount, isShared);
+  const labels = allocate(Int32Array, examples.length, isShared);
   examples.forEach((ex, i) => {
     if (ex.features.length !== ex.mask.length * featureCount) {
       throw new Error(`packEncodedChunk: expected ${featureCount} features per node, example ${i} has ${ex.features.length} for ${ex.mask.length} nodes`);
@@ -31,21 +37,25 @@ export function packEncodedChunk(examples: readonly EncodedExample[]): PackedChu
     features.set(ex.features, nodeStart[i] * featureCount);
     familyIds.set(ex.familyIds, nodeStart[i]);
     mask.set(ex.mask, nodeStart[i]);
+    labels[i] = ex.label;
   });
-  return { featureCount, features, familyIds, mask, nodeStart, labels: Int32Array.from(examples, (e) => e.label), systemIds: examples.map((e) => e.systemId) };
+  return { featureCount, features, familyIds, mask, nodeStart, labels, systemIds: examples.map((e) => e.systemId) };
+}
+
+/** Example `i` of a packed chunk, as views into its arrays. */
+export function viewPackedExample(chunk: PackedChunk, i: number): EncodedExample {
+  const f = chunk.featureCount;
+  const from = chunk.nodeStart[i];
+  const to = chunk.nodeStart[i + 1];
+  return {
+    features: chunk.features.subarray(from * f, to * f),
+    familyIds: chunk.familyIds.subarray(from, to),
+    mask: chunk.mask.subarray(from, to),
+    label: chunk.labels[i],
+    systemId: chunk.systemIds[i],
+  };
 }
 
 export function unpackEncodedChunk(chunk: PackedChunk): EncodedExample[] {
-  const f = chunk.featureCount;
-  return chunk.systemIds.map((systemId, i) => {
-    const from = chunk.nodeStart[i];
-    const to = chunk.nodeStart[i + 1];
-    return {
-      features: chunk.features.subarray(from * f, to * f),
-      familyIds: chunk.familyIds.subarray(from, to),
-      mask: chunk.mask.subarray(from, to),
-      label: chunk.labels[i],
-      systemId,
-    };
-  });
+  return chunk.systemIds.map((_, i) => viewPackedExample(chunk, i));
 }

@@ -12,12 +12,13 @@
  * Why not tfjs autodiff: measured here, the tfjs CPU backend trained this model at ~11 examples/s on
  * the shared 2-core machine; these plain loops skip masked nodes and run far faster.
  */
-import { Worker } from 'node:worker_threads';
 import { join } from 'node:path';
 import type { EncodedExample } from './buildDataset';
 import { createRandom, initSetModel, type SetModelShape, type SetModelWeights } from './setModel';
 import { PARAM_NAMES, zeroGrads, type GradSet, type ParamSet } from './setModelGradient';
-import { createShardRunner, packDataset, type ShardContext } from './trainShard';
+import { packEncodedChunk } from './packEncodedChunk';
+import { startTsWorker } from './startTsWorker';
+import { createShardRunner, type ShardContext } from './trainShard';
 
 export interface TrainOptions {
   readonly epochs: number;
@@ -58,11 +59,10 @@ function shareParams(w: SetModelWeights): ParamSet {
 
 type ShardCall = (shard: number, epoch: number, from: number, to: number, scale: number) => Promise<number>;
 
-/** Worker threads for the shards; the worker runs the TypeScript source through tsx's CommonJS hook. */
+/** Worker threads for the shards, one per shard. */
 function startWorkers(context: ShardContext, grads: readonly GradSet[]): { call: ShardCall; stop: () => Promise<void> } {
-  const hook = require.resolve('tsx/cjs');
   const entry = join(__dirname, 'trainWorker.ts');
-  const workers = grads.map((g) => new Worker(`require(${JSON.stringify(hook)}); require(${JSON.stringify(entry)});`, { eval: true, workerData: { context, grads: g } }));
+  const workers = grads.map((g) => startTsWorker(entry, { context, grads: g }));
   const pending = new Map<number, { resolve: (loss: number) => void; reject: (error: Error) => void }>();
   workers.forEach((worker, shard) => {
     worker.on('message', (message: { loss: number }) => { pending.get(shard)?.resolve(message.loss); pending.delete(shard); });
@@ -87,7 +87,7 @@ export async function trainSetModel(examples: readonly EncodedExample[], shape: 
   const order = new Int32Array(new SharedArrayBuffer(examples.length * 4));
   for (let i = 0; i < examples.length; i++) order[i] = i;
   const context: ShardContext = {
-    shape, featureMean: normalization.mean, featureStd: normalization.std, params, data: packDataset(examples, shape.featureCount),
+    shape, featureMean: normalization.mean, featureStd: normalization.std, params, data: packEncodedChunk(examples, true, shape.featureCount),
     order, seed: options.seed, nodeDropoutRate: options.nodeDropoutRate, ...(options.classWeights ? { classWeights: options.classWeights } : {}),
   };
   const useWorkers = (options.useWorkers ?? true) && shardCount > 1;

@@ -3,53 +3,10 @@
  * order. The same function runs in the training thread and in worker threads, on a dataset and
  * weights held in shared memory, so where a shard runs never changes its numbers.
  */
-import type { EncodedExample } from './buildDataset';
 import { createRandom, type SetModelShape, type SetModelWeights } from './setModel';
 import { accumulateExampleGradient, GradientWorkspace, PARAM_NAMES, type GradSet, type ParamSet } from './setModelGradient';
 import { mixSeeds } from './simulator/random';
-
-/** Encoded examples packed into a few (shared) arrays; example i owns nodes [nodeStart[i], nodeStart[i+1]). */
-export interface PackedDataset {
-  readonly featureCount: number;
-  readonly features: Float32Array;
-  readonly familyIds: Int32Array;
-  readonly mask: Float32Array;
-  readonly nodeStart: Int32Array;
-  readonly labels: Int32Array;
-}
-
-function allocate<T extends Float32Array | Int32Array>(Type: { new (buffer: SharedArrayBuffer): T; readonly BYTES_PER_ELEMENT: number }, length: number): T {
-  return new Type(new SharedArrayBuffer(Math.max(1, length) * Type.BYTES_PER_ELEMENT));
-}
-
-export function packDataset(examples: readonly EncodedExample[], featureCount: number): PackedDataset {
-  const nodeStart = allocate(Int32Array, examples.length + 1);
-  examples.forEach((ex, i) => { nodeStart[i + 1] = nodeStart[i] + ex.mask.length; });
-  const nodeCount = nodeStart[examples.length];
-  const features = allocate(Float32Array, nodeCount * featureCount);
-  const familyIds = allocate(Int32Array, nodeCount);
-  const mask = allocate(Float32Array, nodeCount);
-  const labels = allocate(Int32Array, examples.length);
-  examples.forEach((ex, i) => {
-    features.set(ex.features, nodeStart[i] * featureCount);
-    familyIds.set(ex.familyIds, nodeStart[i]);
-    mask.set(ex.mask, nodeStart[i]);
-    labels[i] = ex.label;
-  });
-  return { featureCount, features, familyIds, mask, nodeStart, labels };
-}
-
-function unpackExample(data: PackedDataset, i: number): EncodedExample {
-  const from = data.nodeStart[i];
-  const to = data.nodeStart[i + 1];
-  return {
-    features: data.features.subarray(from * data.featureCount, to * data.featureCount),
-    familyIds: data.familyIds.subarray(from, to),
-    mask: data.mask.subarray(from, to),
-    label: data.labels[i],
-    systemId: '',
-  };
-}
+import { viewPackedExample, type PackedChunk } from './packEncodedChunk';
 
 /** Everything a shard needs; plain data and shared arrays, so it can be posted to a worker. */
 export interface ShardContext {
@@ -58,7 +15,7 @@ export interface ShardContext {
   readonly featureStd: Float32Array;
   /** The live weights (shared memory when workers run shards). */
   readonly params: ParamSet;
-  readonly data: PackedDataset;
+  readonly data: PackedChunk;
   /** The current epoch's order of example indices (shared). */
   readonly order: Int32Array;
   readonly seed: number;
@@ -105,7 +62,7 @@ export function createShardRunner(context: ShardContext): ShardRunner {
       let loss = 0;
       for (let position = from; position < to; position++) {
         const index = context.order[position];
-        const ex = unpackExample(context.data, index);
+        const ex = viewPackedExample(context.data, index);
         if (thinned.length < ex.mask.length) thinned = new Float32Array(2 * ex.mask.length);
         const random = createRandom(mixSeeds(context.seed, epoch, position, 0x7d1));
         const mask = thinMask(ex.mask, random, context.nodeDropoutRate, thinned.subarray(0, ex.mask.length));
