@@ -23,6 +23,19 @@ describe('inferFamily: status-code labels', () => {
     assert.equal(inferFamily('http.server.duration', 'ms', { 'http.status_code': '500' }), 'errors');
   });
 
+  it('reads gRPC server failures as errors and OK or client-side statuses as what the name says', () => {
+    // gRPC status codes (grpc/doc/statuscodes.md, from memory): OK 0, INVALID_ARGUMENT 3, NOT_FOUND 5,
+    // DEADLINE_EXCEEDED 4, INTERNAL 13, UNAVAILABLE 14. The common Prometheus gRPC middleware names the
+    // label `grpc_code` with the status name; OpenTelemetry uses `rpc.grpc.status_code` with the number.
+    assert.equal(inferFamily('grpc_server_handled_total', undefined, { grpc_code: 'Unavailable', grpc_method: 'Get' }), 'errors');
+    assert.equal(inferFamily('grpc_server_handled_total', undefined, { grpc_code: 'DeadlineExceeded' }), 'errors');
+    assert.equal(inferFamily('rpc.server.call.duration', 's', { 'rpc.grpc.status_code': '13' }), 'errors');
+    assert.equal(inferFamily('grpc_server_handled_total', undefined, { grpc_code: 'OK' }), 'traffic');
+    assert.equal(inferFamily('grpc_server_handled_total', undefined, { grpc_code: 'NotFound' }), 'traffic');
+    assert.equal(inferFamily('rpc.server.call.duration', 's', { 'rpc.grpc.status_code': '0' }), 'latency');
+    assert.equal(inferFamily('rpc.server.call.duration', 's', { 'rpc.grpc.status_code': '3' }), 'latency');
+  });
+
   it('accepts the status class spelling 5xx / 5XX and the keys status, status_code, http_status_code', () => {
     // Common practice: load balancer and CDN exports aggregate by class ("5xx").
     assert.equal(inferFamily('lb_responses_total', undefined, { status: '5xx' }), 'errors');
