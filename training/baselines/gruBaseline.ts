@@ -5,7 +5,7 @@
  */
 import * as tf from '@tensorflow/tfjs-core';
 import { applyHead, lookUpFamilies, poolMaskedMean, type BatchTensors, type Dense } from './layers';
-import { getGruBlockShapes, GRU_BLOCKS, type GruBlock, type GruParameters } from './gruNetwork';
+import { getGruBlockShapes, GRU_BLOCKS, type GruBlock, type GruParameters } from './gruParameters';
 import type { NodeSetModel } from './nodeSetModel';
 
 /**

@@ -9,72 +9,84 @@
  * the cuDNN/PyTorch variant) over its `sequenceLength` samples; node state
  * s = ReLU(h_T + E[family] + slots·S + b_s); mean over unmasked metrics; head
  * logits = W2·ReLU(W1·p + b1) + b2.
+ *
+ * Every pass writes into a reusable {@link GruWorkspace}, so a training step allocates nothing (measured
+ * here on 500 simulated examples: ~24 examples/s with per-step arrays, ~100 examples/s without); the
+ * sums run in the same order as a plain per-step implementation, so the numbers do not depend on it.
  */
-import { FAMILIES } from '../../extension/core/frame/types';
 import type { NodeBatch } from '../../extension/core/model/types';
-import { drawGlorotUniform } from './seededRandom';
+import type { GruParameters, GruShape } from './gruParameters';
 
-/** Sizes of the GRU network. */
-export interface GruShape {
-  readonly rowLength: number;
-  readonly sequenceLength: number;
-  readonly hiddenSize: number;
-  readonly classCount: number;
-}
-
-/** Named parameter blocks (row-major) inside one flat Float32Array. */
-export const GRU_BLOCKS = ['inputZ', 'inputR', 'inputN', 'biasZ', 'biasR', 'biasN', 'stateZ', 'stateR', 'stateN',
-  'family', 'slots', 'slotBias', 'head1', 'head1Bias', 'head2', 'head2Bias'] as const;
-export type GruBlock = (typeof GRU_BLOCKS)[number];
-
-/** Returns the [rows, cols] of every parameter block for a shape. */
-export function getGruBlockShapes(shape: GruShape): Record<GruBlock, readonly [number, number]> {
-  const h = shape.hiddenSize;
-  const slotCount = Math.max(1, shape.rowLength - shape.sequenceLength);
-  return {
-    inputZ: [1, h], inputR: [1, h], inputN: [1, h], biasZ: [1, h], biasR: [1, h], biasN: [1, h],
-    stateZ: [h, h], stateR: [h, h], stateN: [h, h],
-    family: [FAMILIES.length, h], slots: [slotCount, h], slotBias: [1, h],
-    head1: [h, h], head1Bias: [1, h], head2: [h, shape.classCount], head2Bias: [1, shape.classCount],
-  };
-}
-
-/** Flat parameters and the offset of each block. */
-export interface GruParameters {
+/** Scratch arrays of the forward and backward passes, grown to the largest example seen. */
+export class GruWorkspace {
   readonly shape: GruShape;
-  readonly values: Float32Array;
-  readonly offsets: Readonly<Record<GruBlock, number>>;
-}
+  readonly slotCount: number;
+  #capacity = 0;
+  /** h_0..h_T per node: [node][t][k]. */
+  states = new Float64Array(0);
+  /** Gate activations z, r, proposal n, and U_n·h per node and step: [node][t][k]. */
+  z = new Float64Array(0);
+  r = new Float64Array(0);
+  n = new Float64Array(0);
+  un = new Float64Array(0);
+  sequences = new Float64Array(0);
+  slots = new Float64Array(0);
+  nodeStates = new Float64Array(0);
+  families = new Int32Array(0);
+  /** Unmasked nodes of the last forward pass. */
+  nodeCount = 0;
+  readonly pooled: Float64Array;
+  readonly hidden: Float64Array;
+  readonly logits: Float64Array;
+  readonly dLogits: Float64Array;
+  readonly dHidden: Float64Array;
+  readonly dPooled: Float64Array;
+  readonly dh: Float64Array;
+  readonly dPrev: Float64Array;
+  readonly daz: Float64Array;
+  readonly dar: Float64Array;
+  readonly dan: Float64Array;
+  readonly dun: Float64Array;
 
-/** Glorot-uniform weights and zero biases, drawn from `random` in GRU_BLOCKS order. */
-export function initGruParameters(shape: GruShape, random: () => number): GruParameters {
-  const shapes = getGruBlockShapes(shape);
-  const offsets = {} as Record<GruBlock, number>;
-  let total = 0;
-  for (const block of GRU_BLOCKS) { offsets[block] = total; total += shapes[block][0] * shapes[block][1]; }
-  const values = new Float32Array(total);
-  for (const block of GRU_BLOCKS) {
-    if (block.endsWith('Bias') || block.startsWith('bias')) continue;
-    const [rows, cols] = shapes[block];
-    values.set(drawGlorotUniform(rows, cols, random), offsets[block]);
+  constructor(shape: GruShape) {
+    this.shape = shape;
+    this.slotCount = Math.max(1, shape.rowLength - shape.sequenceLength);
+    const h = shape.hiddenSize;
+    [this.pooled, this.hidden, this.dHidden, this.dPooled, this.dh, this.dPrev, this.daz, this.dar, this.dan, this.dun] =
+      Array.from({ length: 10 }, () => new Float64Array(h));
+    this.logits = new Float64Array(shape.classCount);
+    this.dLogits = new Float64Array(shape.classCount);
   }
-  return { shape, values, offsets };
+
+  /** Makes room for `nodeCount` nodes (grows only). */
+  reserve(nodeCount: number): void {
+    if (nodeCount <= this.#capacity) return;
+    const { hiddenSize: h, sequenceLength: w } = this.shape;
+    const capacity = Math.max(nodeCount, 2 * this.#capacity);
+    this.states = new Float64Array(capacity * (w + 1) * h);
+    [this.z, this.r, this.n, this.un] = Array.from({ length: 4 }, () => new Float64Array(capacity * w * h));
+    this.sequences = new Float64Array(capacity * w);
+    this.slots = new Float64Array(capacity * this.slotCount);
+    this.nodeStates = new Float64Array(capacity * h);
+    this.families = new Int32Array(capacity);
+    this.#capacity = capacity;
+  }
 }
 
 const sigmoid = (x: number): number => 1 / (1 + Math.exp(-x));
 
-/** acc[k] += Σ_j v[j]·M[j][k] for M [rows, cols] at `offset` in `m`. */
-function addVectorMatrix(v: ArrayLike<number>, m: Float32Array, offset: number, rows: number, cols: number, acc: Float64Array): void {
+/** acc[accAt + k] += Σ_j v[vAt + j]·M[j][k] for M [rows, cols] at `offset` in `m`. */
+function addVectorMatrix(v: Float64Array, vAt: number, m: Float32Array, offset: number, rows: number, cols: number, acc: Float64Array, accAt: number): void {
   for (let j = 0; j < rows; j++) {
-    const vj = v[j];
+    const vj = v[vAt + j];
     if (vj === 0) continue;
     const base = offset + j * cols;
-    for (let k = 0; k < cols; k++) acc[k] += vj * m[base + k];
+    for (let k = 0; k < cols; k++) acc[accAt + k] += vj * m[base + k];
   }
 }
 
 /** acc[j] += Σ_k M[j][k]·d[k] (the transpose product used by backpropagation). */
-function addMatrixVector(m: Float32Array, offset: number, rows: number, cols: number, d: ArrayLike<number>, acc: Float64Array): void {
+function addMatrixVector(m: Float32Array, offset: number, rows: number, cols: number, d: Float64Array, acc: Float64Array): void {
   for (let j = 0; j < rows; j++) {
     const base = offset + j * cols;
     let s = 0;
@@ -83,177 +95,182 @@ function addMatrixVector(m: Float32Array, offset: number, rows: number, cols: nu
   }
 }
 
-/** g[j][k] += u[j]·d[k] (outer-product gradient of a weight block). */
-function addOuter(u: ArrayLike<number>, d: ArrayLike<number>, g: Float64Array, offset: number, rows: number, cols: number): void {
+/** g[j][k] += u[uAt + j]·d[k] (outer-product gradient of a weight block). */
+function addOuter(u: Float64Array, uAt: number, d: Float64Array, g: Float64Array, offset: number, rows: number, cols: number): void {
   for (let j = 0; j < rows; j++) {
-    const uj = u[j];
+    const uj = u[uAt + j];
     if (uj === 0) continue;
     const base = offset + j * cols;
     for (let k = 0; k < cols; k++) g[base + k] += uj * d[k];
   }
 }
 
-interface NodeTrace {
-  readonly states: Float64Array[]; // h_0..h_T
-  readonly gates: { z: Float64Array; r: Float64Array; n: Float64Array; un: Float64Array }[];
-  readonly nodeState: Float64Array;
-  readonly family: number;
-  readonly slots: Float64Array;
-  readonly sequence: Float64Array;
+/** Reads node `i` of example `e` into workspace slot `slot`: inputs (NaN → 0) and family. */
+function loadNode(ws: GruWorkspace, batch: NodeBatch, e: number, i: number, slot: number): void {
+  const { sequenceLength: w, rowLength } = ws.shape;
+  const rowOffset = (e * batch.nodeCount + i) * rowLength;
+  for (let t = 0; t < w; t++) { const x = batch.values[rowOffset + t]; ws.sequences[slot * w + t] = Number.isFinite(x) ? x : 0; }
+  ws.slots.fill(0, slot * ws.slotCount, (slot + 1) * ws.slotCount);
+  for (let s = 0; s < rowLength - w; s++) { const x = batch.values[rowOffset + w + s]; ws.slots[slot * ws.slotCount + s] = Number.isFinite(x) ? x : 0; }
+  ws.families[slot] = Number(batch.families[e * batch.nodeCount + i]);
 }
 
-function runNode(p: GruParameters, batch: NodeBatch, e: number, i: number): NodeTrace {
-  const { sequenceLength: w, hiddenSize: h, rowLength } = p.shape;
+/** Runs the GRU over the node in `slot` and writes its gates, states and node state. */
+function runNode(p: GruParameters, ws: GruWorkspace, slot: number): void {
+  const { sequenceLength: w, hiddenSize: h } = p.shape;
   const o = p.offsets;
   const v = p.values;
-  const rowOffset = (e * batch.nodeCount + i) * rowLength;
-  const sequence = new Float64Array(w);
-  for (let t = 0; t < w; t++) { const x = batch.values[rowOffset + t]; sequence[t] = Number.isFinite(x) ? x : 0; }
-  const slotCount = Math.max(1, rowLength - w);
-  const slots = new Float64Array(slotCount);
-  for (let s = 0; s < rowLength - w; s++) { const x = batch.values[rowOffset + w + s]; slots[s] = Number.isFinite(x) ? x : 0; }
-  const states = [new Float64Array(h)];
-  const gates: NodeTrace['gates'] = [];
+  const { states, z, r, n, un } = ws;
+  const stateBase = slot * (w + 1) * h;
+  states.fill(0, stateBase, stateBase + h);
   for (let t = 0; t < w; t++) {
-    const prev = states[t];
-    const x = sequence[t];
-    const az = new Float64Array(h), ar = new Float64Array(h), un = new Float64Array(h);
-    for (let k = 0; k < h; k++) { az[k] = v[o.inputZ + k] * x + v[o.biasZ + k]; ar[k] = v[o.inputR + k] * x + v[o.biasR + k]; }
-    addVectorMatrix(prev, v, o.stateZ, h, h, az);
-    addVectorMatrix(prev, v, o.stateR, h, h, ar);
-    addVectorMatrix(prev, v, o.stateN, h, h, un);
-    const z = az.map(sigmoid), r = ar.map(sigmoid), n = new Float64Array(h), next = new Float64Array(h);
+    const prev = stateBase + t * h;
+    const gate = (slot * w + t) * h;
+    const x = ws.sequences[slot * w + t];
     for (let k = 0; k < h; k++) {
-      n[k] = Math.tanh(v[o.inputN + k] * x + v[o.biasN + k] + r[k] * un[k]);
-      next[k] = n[k] + z[k] * (prev[k] - n[k]);
+      z[gate + k] = v[o.inputZ + k] * x + v[o.biasZ + k];
+      r[gate + k] = v[o.inputR + k] * x + v[o.biasR + k];
+      un[gate + k] = 0;
     }
-    gates.push({ z, r, n, un });
-    states.push(next);
+    for (let j = 0; j < h; j++) {
+      const pj = states[prev + j];
+      if (pj === 0) continue;
+      const rowZ = o.stateZ + j * h, rowR = o.stateR + j * h, rowN = o.stateN + j * h;
+      for (let k = 0; k < h; k++) {
+        z[gate + k] += pj * v[rowZ + k];
+        r[gate + k] += pj * v[rowR + k];
+        un[gate + k] += pj * v[rowN + k];
+      }
+    }
+    for (let k = 0; k < h; k++) {
+      const zk = sigmoid(z[gate + k]), rk = sigmoid(r[gate + k]);
+      const nk = Math.tanh(v[o.inputN + k] * x + v[o.biasN + k] + rk * un[gate + k]);
+      z[gate + k] = zk; r[gate + k] = rk; n[gate + k] = nk;
+      states[prev + h + k] = nk + zk * (states[prev + k] - nk);
+    }
   }
-  const family = Number(batch.families[e * batch.nodeCount + i]);
-  const nodeState = Float64Array.from(states[w]);
-  for (let k = 0; k < h; k++) nodeState[k] += v[o.family + family * h + k] + v[o.slotBias + k];
-  addVectorMatrix(slots, v, o.slots, slotCount, h, nodeState);
-  for (let k = 0; k < h; k++) nodeState[k] = Math.max(0, nodeState[k]);
-  return { states, gates, nodeState, family, slots, sequence };
+  const last = stateBase + w * h;
+  const node = slot * h;
+  const family = ws.families[slot];
+  for (let k = 0; k < h; k++) ws.nodeStates[node + k] = states[last + k] + (v[o.family + family * h + k] + v[o.slotBias + k]);
+  addVectorMatrix(ws.slots, slot * ws.slotCount, v, o.slots, ws.slotCount, h, ws.nodeStates, node);
+  for (let k = 0; k < h; k++) ws.nodeStates[node + k] = Math.max(0, ws.nodeStates[node + k]);
 }
 
-interface ExampleTrace {
-  readonly nodes: readonly NodeTrace[];
-  readonly pooled: Float64Array;
-  readonly hidden: Float64Array;
-  readonly logits: Float64Array;
-}
-
-function forwardExample(p: GruParameters, batch: NodeBatch, e: number): ExampleTrace {
+/** Forward pass of example `e` into `ws` (pooled, hidden, logits and every node's trace). */
+function forwardExample(p: GruParameters, batch: NodeBatch, e: number, ws: GruWorkspace): void {
   const { hiddenSize: h, classCount: c } = p.shape;
   const o = p.offsets;
-  const nodes: NodeTrace[] = [];
-  for (let i = 0; i < batch.nodeCount; i++) if (batch.mask[e * batch.nodeCount + i] > 0) nodes.push(runNode(p, batch, e, i));
-  const pooled = new Float64Array(h);
-  for (const node of nodes) for (let k = 0; k < h; k++) pooled[k] += node.nodeState[k] / nodes.length;
-  const hidden = new Float64Array(h);
-  for (let k = 0; k < h; k++) hidden[k] = p.values[o.head1Bias + k];
-  addVectorMatrix(pooled, p.values, o.head1, h, h, hidden);
-  for (let k = 0; k < h; k++) hidden[k] = Math.max(0, hidden[k]);
-  const logits = new Float64Array(c);
-  for (let k = 0; k < c; k++) logits[k] = p.values[o.head2Bias + k];
-  addVectorMatrix(hidden, p.values, o.head2, h, c, logits);
-  return { nodes, pooled, hidden, logits };
+  let count = 0;
+  for (let i = 0; i < batch.nodeCount; i++) if (batch.mask[e * batch.nodeCount + i] > 0) count++;
+  ws.reserve(count);
+  ws.nodeCount = count;
+  let slot = 0;
+  for (let i = 0; i < batch.nodeCount; i++) {
+    if (!(batch.mask[e * batch.nodeCount + i] > 0)) continue;
+    loadNode(ws, batch, e, i, slot);
+    runNode(p, ws, slot++);
+  }
+  ws.pooled.fill(0);
+  for (let s = 0; s < count; s++) for (let k = 0; k < h; k++) ws.pooled[k] += ws.nodeStates[s * h + k] / count;
+  for (let k = 0; k < h; k++) ws.hidden[k] = p.values[o.head1Bias + k];
+  addVectorMatrix(ws.pooled, 0, p.values, o.head1, h, h, ws.hidden, 0);
+  for (let k = 0; k < h; k++) ws.hidden[k] = Math.max(0, ws.hidden[k]);
+  for (let k = 0; k < c; k++) ws.logits[k] = p.values[o.head2Bias + k];
+  addVectorMatrix(ws.hidden, 0, p.values, o.head2, h, c, ws.logits, 0);
 }
 
-/** Logits [B, C] of a batch (masked nodes are skipped; an all-masked example pools to zeros). */
-export function computeGruLogits(p: GruParameters, batch: NodeBatch): Float32Array {
+/**
+ * Logits [B, C] of a batch (masked nodes are skipped; an all-masked example pools to zeros).
+ * `ws` is scratch space; pass one to reuse it across calls.
+ */
+export function computeGruLogits(p: GruParameters, batch: NodeBatch, ws = new GruWorkspace(p.shape)): Float32Array {
   const c = p.shape.classCount;
   const out = new Float32Array(batch.batchSize * c);
-  for (let e = 0; e < batch.batchSize; e++) out.set(forwardExample(p, batch, e).logits, e * c);
+  for (let e = 0; e < batch.batchSize; e++) {
+    forwardExample(p, batch, e, ws);
+    for (let k = 0; k < c; k++) out[e * c + k] = ws.logits[k];
+  }
   return out;
 }
 
-function backwardNode(p: GruParameters, node: NodeTrace, dState: Float64Array, g: Float64Array): void {
+/** Backpropagation through time of the node in `slot`, from dLoss/dNodeState (pre-ReLU) in `ws.dh`. */
+function backwardNode(p: GruParameters, ws: GruWorkspace, slot: number, g: Float64Array): void {
   const { hiddenSize: h, sequenceLength: w } = p.shape;
   const o = p.offsets;
   const v = p.values;
-  const slotCount = node.slots.length;
+  const { states, z, r, n, un, dh, dPrev, daz, dar, dan, dun } = ws;
+  const family = ws.families[slot];
   for (let k = 0; k < h; k++) {
-    g[o.family + node.family * h + k] += dState[k];
-    g[o.slotBias + k] += dState[k];
+    g[o.family + family * h + k] += dh[k];
+    g[o.slotBias + k] += dh[k];
   }
-  addOuter(node.slots, dState, g, o.slots, slotCount, h);
-  let dh = Float64Array.from(dState);
+  addOuter(ws.slots, slot * ws.slotCount, dh, g, o.slots, ws.slotCount, h);
+  const stateBase = slot * (w + 1) * h;
   for (let t = w - 1; t >= 0; t--) {
-    const { z, r, n, un } = node.gates[t];
-    const prev = node.states[t];
-    const x = node.sequence[t];
-    const dPrev = new Float64Array(h), daz = new Float64Array(h), dar = new Float64Array(h), dan = new Float64Array(h), dun = new Float64Array(h);
+    const prev = stateBase + t * h;
+    const gate = (slot * w + t) * h;
+    const x = ws.sequences[slot * w + t];
     for (let k = 0; k < h; k++) {
-      dPrev[k] = dh[k] * z[k];
-      dan[k] = dh[k] * (1 - z[k]) * (1 - n[k] * n[k]);
-      daz[k] = dh[k] * (prev[k] - n[k]) * z[k] * (1 - z[k]);
-      dar[k] = dan[k] * un[k] * r[k] * (1 - r[k]);
-      dun[k] = dan[k] * r[k];
+      const zk = z[gate + k], nk = n[gate + k], rk = r[gate + k];
+      dPrev[k] = dh[k] * zk;
+      dan[k] = dh[k] * (1 - zk) * (1 - nk * nk);
+      daz[k] = dh[k] * (states[prev + k] - nk) * zk * (1 - zk);
+      dar[k] = dan[k] * un[gate + k] * rk * (1 - rk);
+      dun[k] = dan[k] * rk;
       g[o.inputZ + k] += daz[k] * x; g[o.biasZ + k] += daz[k];
       g[o.inputR + k] += dar[k] * x; g[o.biasR + k] += dar[k];
       g[o.inputN + k] += dan[k] * x; g[o.biasN + k] += dan[k];
     }
-    addOuter(prev, daz, g, o.stateZ, h, h);
-    addOuter(prev, dar, g, o.stateR, h, h);
-    addOuter(prev, dun, g, o.stateN, h, h);
-    addMatrixVector(v, o.stateZ, h, h, daz, dPrev);
-    addMatrixVector(v, o.stateR, h, h, dar, dPrev);
-    addMatrixVector(v, o.stateN, h, h, dun, dPrev);
-    dh = dPrev;
+    for (let j = 0; j < h; j++) {
+      const pj = states[prev + j];
+      if (pj === 0) continue;
+      const rowZ = o.stateZ + j * h, rowR = o.stateR + j * h, rowN = o.stateN + j * h;
+      for (let k = 0; k < h; k++) {
+        g[rowZ + k] += pj * daz[k];
+        g[rowR + k] += pj * dar[k];
+        g[rowN + k] += pj * dun[k];
+      }
+    }
+    // dh_{t-1} = dh_t·z + U_zᵀ·da_z + U_rᵀ·da_r + U_nᵀ·du_n, summed in that order.
+    for (let j = 0; j < h; j++) {
+      const rowZ = o.stateZ + j * h, rowR = o.stateR + j * h, rowN = o.stateN + j * h;
+      let sz = 0, sr = 0, sn = 0;
+      for (let k = 0; k < h; k++) {
+        sz += v[rowZ + k] * daz[k];
+        sr += v[rowR + k] * dar[k];
+        sn += v[rowN + k] * dun[k];
+      }
+      dh[j] = dPrev[j] + sz + sr + sn;
+    }
   }
 }
 
 /**
  * Adds to `g` the gradient of weight·CE(softmax(logits), label) for example `e` and returns that
- * weighted loss. CE = −log softmax(logits)[label].
+ * weighted loss. CE = −log softmax(logits)[label]. `ws` is scratch space; pass one to reuse it.
  */
-export function accumulateGruGradient(p: GruParameters, batch: NodeBatch, e: number, label: number, weight: number, g: Float64Array): number {
+export function accumulateGruGradient(p: GruParameters, batch: NodeBatch, e: number, label: number, weight: number, g: Float64Array, ws = new GruWorkspace(p.shape)): number {
   const { hiddenSize: h, classCount: c } = p.shape;
   const o = p.offsets;
-  const trace = forwardExample(p, batch, e);
-  const max = Math.max(...trace.logits);
-  const exp = trace.logits.map((l) => Math.exp(l - max));
-  const total = exp.reduce((a, b) => a + b, 0);
-  const dLogits = exp.map((x, k) => weight * (x / total - (k === label ? 1 : 0)));
+  forwardExample(p, batch, e, ws);
+  const { logits, dLogits, hidden, dHidden, pooled, dPooled, dh } = ws;
+  let max = -Infinity;
+  for (let k = 0; k < c; k++) max = Math.max(max, logits[k]);
+  let total = 0;
+  for (let k = 0; k < c; k++) { dLogits[k] = Math.exp(logits[k] - max); total += dLogits[k]; }
+  for (let k = 0; k < c; k++) dLogits[k] = weight * (dLogits[k] / total - (k === label ? 1 : 0));
   for (let k = 0; k < c; k++) g[o.head2Bias + k] += dLogits[k];
-  addOuter(trace.hidden, dLogits, g, o.head2, h, c);
-  const dHidden = new Float64Array(h);
+  addOuter(hidden, 0, dLogits, g, o.head2, h, c);
+  dHidden.fill(0);
   addMatrixVector(p.values, o.head2, h, c, dLogits, dHidden);
-  for (let k = 0; k < h; k++) { if (trace.hidden[k] <= 0) dHidden[k] = 0; g[o.head1Bias + k] += dHidden[k]; }
-  addOuter(trace.pooled, dHidden, g, o.head1, h, h);
-  const dPooled = new Float64Array(h);
+  for (let k = 0; k < h; k++) { if (hidden[k] <= 0) dHidden[k] = 0; g[o.head1Bias + k] += dHidden[k]; }
+  addOuter(pooled, 0, dHidden, g, o.head1, h, h);
+  dPooled.fill(0);
   addMatrixVector(p.values, o.head1, h, h, dHidden, dPooled);
-  for (const node of trace.nodes) {
-    const dState = new Float64Array(h);
-    for (let k = 0; k < h; k++) dState[k] = node.nodeState[k] > 0 ? dPooled[k] / trace.nodes.length : 0;
-    backwardNode(p, node, dState, g);
+  for (let s = 0; s < ws.nodeCount; s++) {
+    for (let k = 0; k < h; k++) dh[k] = ws.nodeStates[s * h + k] > 0 ? dPooled[k] / ws.nodeCount : 0;
+    backwardNode(p, ws, s, g);
   }
-  return weight * (Math.log(total) + max - trace.logits[label]);
-}
-
-/** Adam state (Kingma & Ba 2015; β1 0.9, β2 0.999, ε 1e-8, bias-corrected). */
-export interface AdamState {
-  readonly first: Float64Array;
-  readonly second: Float64Array;
-  step: number;
-}
-
-/** Returns zeroed Adam moments for `size` parameters. */
-export function createAdamState(size: number): AdamState {
-  return { first: new Float64Array(size), second: new Float64Array(size), step: 0 };
-}
-
-/** One Adam update of `values` in place from gradient `g`. */
-export function applyAdam(values: Float32Array, g: Float64Array, state: AdamState, learningRate: number): void {
-  state.step++;
-  const c1 = 1 - 0.9 ** state.step;
-  const c2 = 1 - 0.999 ** state.step;
-  for (let i = 0; i < values.length; i++) {
-    state.first[i] = 0.9 * state.first[i] + 0.1 * g[i];
-    state.second[i] = 0.999 * state.second[i] + 0.001 * g[i] * g[i];
-    values[i] -= (learningRate * (state.first[i] / c1)) / (Math.sqrt(state.second[i] / c2) + 1e-8);
-  }
+  return weight * (Math.log(total) + max - logits[label]);
 }

@@ -10,7 +10,7 @@ import { CLASSES, type NodeBatch } from '../../extension/core/model/types';
 import type { TrainingExample } from '../simulator/types';
 import { computeFamilySummary } from './familySummary';
 import { createGcnBaseline, createGinBaseline } from './graphBaselines';
-import { initGruParameters } from './gruNetwork';
+import { initGruParameters } from './gruParameters';
 import { fitNearestCentroid, predictNearestCentroid } from './nearestCentroid';
 import { fitRandomForest, predictRandomForest } from './randomForest';
 import type { NodeSetModel, NodeSetModelSpec } from './nodeSetModel';

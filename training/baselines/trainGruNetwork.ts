@@ -1,6 +1,7 @@
 /** Minibatch training and prediction of the plain-JS GRU baseline (gruNetwork.ts). */
 import type { NodeBatch } from '../../extension/core/model/types';
-import { accumulateGruGradient, applyAdam, computeGruLogits, createAdamState, type GruParameters } from './gruNetwork';
+import { accumulateGruGradient, computeGruLogits, GruWorkspace } from './gruNetwork';
+import { applyAdam, createAdamState, type GruParameters } from './gruParameters';
 import { shuffleInPlace } from './seededRandom';
 import { computeClassWeights, type TrainOptions } from './trainNodeSetModel';
 
@@ -12,6 +13,7 @@ export async function trainGruNetwork(p: GruParameters, examples: readonly NodeB
   const classWeights = computeClassWeights(labels, p.shape.classCount);
   const adam = createAdamState(p.values.length);
   const gradient = new Float64Array(p.values.length);
+  const workspace = new GruWorkspace(p.shape);
   let lastLoss = Number.NaN;
   for (let epoch = 0; epoch < options.epochs; epoch++) {
     const order = shuffleInPlace(Array.from(labels.keys()), options.random);
@@ -19,7 +21,7 @@ export async function trainGruNetwork(p: GruParameters, examples: readonly NodeB
     for (let start = 0; start < order.length; start += options.batchSize) {
       const indices = order.slice(start, start + options.batchSize);
       gradient.fill(0);
-      for (const i of indices) lossSum += accumulateGruGradient(p, examples[i], 0, labels[i], classWeights[labels[i]] / indices.length, gradient) * indices.length;
+      for (const i of indices) lossSum += accumulateGruGradient(p, examples[i], 0, labels[i], classWeights[labels[i]] / indices.length, gradient, workspace) * indices.length;
       applyAdam(p.values, gradient, adam, options.learningRate);
     }
     lastLoss = order.length > 0 ? lossSum / order.length : Number.NaN;
@@ -33,8 +35,9 @@ export async function trainGruNetwork(p: GruParameters, examples: readonly NodeB
 export function predictGruNetwork(p: GruParameters, examples: readonly NodeBatch[]): Int32Array {
   const c = p.shape.classCount;
   const out = new Int32Array(examples.length);
+  const workspace = new GruWorkspace(p.shape);
   examples.forEach((example, i) => {
-    const logits = computeGruLogits(p, example);
+    const logits = computeGruLogits(p, example, workspace);
     let best = 0;
     for (let k = 1; k < c; k++) if (logits[k] > logits[best]) best = k;
     out[i] = best;

@@ -8,7 +8,8 @@ import type { SimClass, TrainingExample } from '../../../training/simulator/type
 import { computeFamilySummary } from '../../../training/baselines/familySummary';
 import { buildCompleteAdjacency, createGcnBaseline, createGinBaseline, normalizeAdjacency, propagateGcn } from '../../../training/baselines/graphBaselines';
 import { createGruReference, toGruVariables } from '../../../training/baselines/gruBaseline';
-import { accumulateGruGradient, computeGruLogits, getGruBlockShapes, GRU_BLOCKS, initGruParameters } from '../../../training/baselines/gruNetwork';
+import { accumulateGruGradient, computeGruLogits, GruWorkspace } from '../../../training/baselines/gruNetwork';
+import { getGruBlockShapes, GRU_BLOCKS, initGruParameters } from '../../../training/baselines/gruParameters';
 import { scoreBaselines } from '../../../training/baselines/index';
 import { toBatchTensors } from '../../../training/baselines/layers';
 import { computeGini, findBestSplit } from '../../../training/baselines/randomForest';
@@ -167,6 +168,25 @@ describe('baselines', () => {
         assert.ok(Math.abs(actual - expected[k]) < 1e-4 + 1e-3 * Math.abs(expected[k]), `${block}[${k}]: ${actual} vs ${expected[k]}`);
       }
     }
+  });
+
+  it('a GRU workspace reused over examples of different sizes gives the same logits and gradients as fresh ones', () => {
+    // Reference: a fresh workspace per example, the pass checked against tfjs autodiff above; a
+    // larger example first leaves stale traces that the smaller one must not read.
+    const shape = { rowLength: getRowLength(DEFAULT_WINDOW_SPEC), sequenceLength: DEFAULT_WINDOW_SPEC.sampleCount, hiddenSize: 5, classCount: CLASSES.length };
+    const gru = initGruParameters(shape, createRandom(6));
+    const examples = makeToySplit(3, 15, 6).map((e) => encodeBatch([e.metrics])).sort((a, b) => b.nodeCount - a.nodeCount);
+    assert.ok(examples[0].nodeCount > examples[2].nodeCount, 'expected examples of different sizes');
+    const shared = new GruWorkspace(shape);
+    const reused = new Float64Array(gru.values.length);
+    const fresh = new Float64Array(gru.values.length);
+    examples.forEach((batch, e) => {
+      const lossReused = accumulateGruGradient(gru, batch, 0, e + 1, 0.5, reused, shared);
+      const lossFresh = accumulateGruGradient(gru, batch, 0, e + 1, 0.5, fresh);
+      assert.equal(lossReused, lossFresh);
+      assert.deepEqual(computeGruLogits(gru, batch, shared), computeGruLogits(gru, batch));
+    });
+    assert.deepEqual(reused, fresh);
   });
 
   it('Gini impurity and the best split match hand computation', () => {
