@@ -1,0 +1,102 @@
+import assert from 'node:assert/strict';
+import { join } from 'node:path';
+import { loadClassifierModel, type LoadedClassifier } from '../../../extension/runtime/onnxRunner';
+import { computeCalibratedLogProbabilities } from '../../../extension/core/model/classifier';
+import { encodeBatch } from '../../../extension/core/model/encode';
+import { createLibraryEntry, formatLibraryModelVersion } from '../../../extension/core/model/libraryEntry';
+import { computeEntrySimilarity, matchLibrary } from '../../../extension/core/model/libraryMatch';
+import { findNearestIncidents } from '../../../extension/core/model/libraryVerdict';
+import type { LibraryEntry } from '../../../extension/core/model/libraryTypes';
+import { CLASSES, type MetricWindow } from '../../../extension/core/model/types';
+import { buildSystemSpec, mixSeeds, sampleExamples, type SimClass, type TrainingExample } from '../../../training/simulator';
+
+// Unit scale, signature weight 0.5: the combined similarity is (signature cosine + embedding cosine)/2.
+const UNIT_SCALE = { signatureWeight: 0.5, signatureMean: 0, signatureSd: 1, embeddingMean: 0, embeddingSd: 1 };
+
+describe('computeEntrySimilarity', () => {
+  it('mixes the signature and embedding cosines of one entry (hand-computed)', () => {
+    const query = { embedding: [1, 0], signature: new Map([['pool', Float64Array.from([1, 0])]]) };
+    // Cosine definition: cos((1,0),(1,1)) = 1/√2 and cos((1,0),(0,1)) = 0 → (1/√2 + 0)/2.
+    const both = computeEntrySimilarity(query, { label: 'x', embedding: [0, 1], signature: new Map([['pool', Float64Array.from([1, 1])]]) }, UNIT_SCALE);
+    assert.ok(Math.abs(both - Math.SQRT1_2 / 2) < 1e-12);
+    // No shared metric id: the embedding term alone (cos((1,0),(3,4)) = 3/5).
+    const embeddingOnly = computeEntrySimilarity(query, { label: 'x', embedding: [3, 4], signature: new Map([['cpu', Float64Array.from([1, 0])]]) }, UNIT_SCALE);
+    assert.ok(Math.abs(embeddingOnly - 0.6) < 1e-12);
+    // An embedding of another length is not comparable; with no signature either, nothing counts.
+    assert.equal(computeEntrySimilarity({ embedding: [1, 0] }, { label: 'x', embedding: [1, 0, 0] }, UNIT_SCALE), Number.NEGATIVE_INFINITY);
+  });
+});
+
+// Real bundled model (media/model) on simulated incidents of one invented Larkspur Provisions
+// service; the simulator's fault labels are the ground truth the list is checked against.
+const MODEL_DIR = join(__dirname, '../../../media/model');
+const POOL = 'connection_pool_exhaustion';
+
+interface Classified { readonly example: TrainingExample; readonly probabilities: Record<string, number>; readonly embedding: number[] }
+
+async function classify(model: LoadedClassifier, examples: readonly TrainingExample[]): Promise<Classified[]> {
+  const output = await model.runner.run(encodeBatch(examples.map((e) => e.metrics), model.spec.windowSpec));
+  return examples.map((example, i) => {
+    const logProbabilities = computeCalibratedLogProbabilities(output.logits.subarray(i * output.classCount, (i + 1) * output.classCount), model.spec.temperature);
+    return {
+      example,
+      probabilities: Object.fromEntries(model.spec.classes.map((c, j) => [c, Math.exp(logProbabilities[j])])),
+      embedding: Array.from(output.embedding.subarray(i * output.embeddingSize, (i + 1) * output.embeddingSize)),
+    };
+  });
+}
+
+function toEntry(c: Classified, index: number, modelVersion: string): LibraryEntry {
+  return createLibraryEntry({
+    id: `20261202T0${String(index).padStart(2, '0')}000Z-0000${String(index).padStart(2, '0')}`, label: c.example.label, window: { startMs: 0, endMs: 1 }, baseline: { startMs: 0, endMs: 1 },
+    exportSha256: '0'.repeat(64), exportFile: `exports/pantry-db-${index}.csv`, createdMs: 0, modelVersion, embedding: c.embedding,
+    metrics: c.example.metrics.map((m: MetricWindow) => ({ ...m, name: m.id })),
+  });
+}
+
+describe('nearest past incidents with the real bundled model', () => {
+  let model: LoadedClassifier;
+  let modelVersion: string;
+  let library: LibraryEntry[];
+  let queries: Classified[];
+
+  before(async () => {
+    model = await loadClassifierModel(MODEL_DIR);
+    modelVersion = formatLibraryModelVersion(model.spec.version, model.sha256);
+    let system = -1;
+    for (let seed = 700; seed < 800 && system < 0; seed++) if (buildSystemSpec(seed).series.some((s) => s.role.key.startsWith('pool'))) system = seed;
+    assert.ok(system >= 0, 'expected a simulated system with a pool metric among seeds 700..799');
+    const draw = (part: number, count: number, classes: readonly SimClass[]): TrainingExample[] =>
+      sampleExamples({ seed: mixSeeds(20261202, part, system), count, systemSeeds: [system], classes });
+    // The team's library: 3 of its pool exhaustions and 2 of its incidents per built-in class.
+    library = (await classify(model, [...draw(1, 3, [POOL]), ...draw(2, 2 * CLASSES.length, CLASSES)])).map((c, i) => toEntry(c, i, modelVersion));
+    queries = await classify(model, [...draw(3, 12, [POOL]), ...draw(4, 2 * CLASSES.length, CLASSES)]);
+  });
+  after(async () => { await model.runner.release(); });
+
+  it('ranks by the combined similarity when the metric data is given, by embedding cosine without it', () => {
+    for (const q of queries) {
+      const withData = matchLibrary(q.probabilities, q.embedding, library, modelVersion, { metrics: q.example.metrics }, undefined, library.length);
+      assert.equal(withData.nearest.length, library.length);
+      const combined = withData.nearest.map((n) => n.combinedSimilarity ?? Number.NaN);
+      assert.ok(combined.every(Number.isFinite), 'every entry carries the combined similarity that ranked it');
+      combined.slice(1).forEach((s, i) => assert.ok(s <= combined[i], `combined similarity rises at rank ${i + 2}: ${combined[i]} → ${s}`));
+      const withoutData = matchLibrary(q.probabilities, q.embedding, library, modelVersion, undefined, undefined, 3);
+      assert.deepEqual(withoutData.nearest, findNearestIncidents(q.embedding, library, 3));
+      assert.ok(withoutData.nearest.every((n) => n.combinedSimilarity === undefined));
+    }
+  });
+
+  it('puts an incident of the query\'s own kind first at least as often as the embedding alone does', () => {
+    let byCombined = 0;
+    let byEmbedding = 0;
+    for (const q of queries) {
+      if (matchLibrary(q.probabilities, q.embedding, library, modelVersion, { metrics: q.example.metrics }).nearest[0]?.label === q.example.label) byCombined += 1;
+      if (findNearestIncidents(q.embedding, library, 1)[0]?.label === q.example.label) byEmbedding += 1;
+    }
+    console.log(`      top entry of the query's kind: combined ${byCombined}, embedding ${byEmbedding} of ${queries.length} (model ${modelVersion})`);
+    // Measured with model 0.3.0 (4fe31beecc8e) and the shipped defaults: combined 23, embedding 20 of 28.
+    assert.ok(byCombined >= byEmbedding, `expected the combined ranking to match the query's kind at least as often, got ${byCombined} vs ${byEmbedding}`);
+    assert.ok(byCombined >= queries.length / 2, `expected at least half of ${queries.length} top entries of the query's kind, got ${byCombined}`);
+  });
+});
