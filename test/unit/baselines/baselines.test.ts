@@ -11,6 +11,7 @@ import { createGruReference, toGruVariables } from '../../../training/baselines/
 import { accumulateGruGradient, computeGruLogits, GruWorkspace } from '../../../training/baselines/gruNetwork';
 import { getGruBlockShapes, GRU_BLOCKS, initGruParameters } from '../../../training/baselines/gruParameters';
 import { scoreBaselines } from '../../../training/baselines/index';
+import { trainGruNetwork } from '../../../training/baselines/trainGruNetwork';
 import { toBatchTensors } from '../../../training/baselines/layers';
 import { computeGini, findBestSplit } from '../../../training/baselines/randomForest';
 import type { NodeSetModel } from '../../../training/baselines/nodeSetModel';
@@ -187,6 +188,25 @@ describe('baselines', () => {
       assert.deepEqual(computeGruLogits(gru, batch, shared), computeGruLogits(gru, batch));
     });
     assert.deepEqual(reused, fresh);
+  });
+
+  it('GRU training gives the same weights with its shards in worker threads or in this thread', async () => {
+    // The shards' gradients are added in shard order whichever thread computed them, so the two
+    // runs must agree bit for bit; a shared-memory or ordering slip shows up as differing weights.
+    const shape = { rowLength: getRowLength(DEFAULT_WINDOW_SPEC), sequenceLength: DEFAULT_WINDOW_SPEC.sampleCount, hiddenSize: 4, classCount: CLASSES.length };
+    const toy = makeToySplit(24, 16, 2);
+    const examples = toy.map((e) => encodeBatch([e.metrics]));
+    const labels = Int32Array.from(toy, (e) => (CLASSES as readonly string[]).indexOf(e.label));
+    const train = async (useWorkers: boolean): Promise<{ values: Float32Array; loss: number }> => {
+      const gru = initGruParameters(shape, createRandom(8));
+      const loss = await trainGruNetwork(gru, examples, labels, { epochs: 2, batchSize: 7, learningRate: 1e-2, random: createRandom(9), shardCount: 2, useWorkers });
+      return { values: gru.values, loss };
+    };
+    const [inThread, inWorkers] = [await train(false), await train(true)];
+    const initial = initGruParameters(shape, createRandom(8)).values;
+    assert.ok(inThread.values.some((v, i) => v !== initial[i]), 'expected training to move the weights');
+    assert.equal(inWorkers.loss, inThread.loss);
+    assert.deepEqual(inWorkers.values, inThread.values);
   });
 
   it('Gini impurity and the best split match hand computation', () => {
