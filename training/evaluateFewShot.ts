@@ -33,6 +33,7 @@ import { calibrateCompetition, computeEpisodeSimilarities, describeCompetition, 
 import { computeMetricSignature } from '../extension/core/model/librarySignature';
 import { DEFAULT_COMPETITION_OPTIONS, type CompetitionOptions } from '../extension/core/model/librarySignatureVerdict';
 import { join } from 'node:path';
+import { writeSideStudies } from './fewShotStudies';
 import { buildFewShotSplits, buildSplits, buildSystemSpec, DEFAULT_TRAIN_SYSTEMS, drawSystemSeeds, HELD_OUT_CLASSES, mixSeeds, sampleExamples, type SimClass, type TrainingExample } from './simulator';
 
 /** The bundled model seen as: calibrated probabilities over CLASSES and an embedding per example. */
@@ -281,6 +282,7 @@ export async function runFewShotEvaluation(argv: readonly string[]): Promise<voi
   // library also holds their incidents of built-in kinds — calibrated on both calibration halves pooled.
   const joint = calibrateCompetition([...withoutBuiltInSupport(sameCalibration), ...sameCalibration], HELD_OUT_CLASSES, [0.25, 0.5, 0.75], args.budget, ['mean', 'max'], [Number.POSITIVE_INFINITY, 0.5, 1, 1.5, 2, 3], true);
   process.stdout.write(`\nproduct defaults suggested by the pooled same-system calibration halves (with and without built-in incidents in the library): ${joint === undefined ? 'none within budget' : `${describeCompetition(joint.options)} (calibration held-out accuracy ${format(joint.accuracy)})`}\n`);
+  writeSideStudies([{ title: 'new systems', groups: crossReport }, { title: 'same systems, library also holds built-in incidents', groups: sameReport }], [...withoutBuiltInSupport(sameCalibration), ...sameCalibration], HELD_OUT_CLASSES, args.episodes, DEFAULT_COMPETITION_OPTIONS);
   await reportStorageEffect(embedder, cross.rawSupport, cross.groups[0].support);
   await embedder.release();
   process.stdout.write(`\n(${((Date.now() - startedMs) / 1000).toFixed(1)} s)\n`);

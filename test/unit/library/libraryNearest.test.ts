@@ -87,7 +87,7 @@ describe('nearest past incidents with the real bundled model', () => {
     }
   });
 
-  it('puts an incident of the query\'s own kind first at least as often as the embedding alone does', () => {
+  it('puts an incident of the query\'s own kind first for most queries of that service', () => {
     let byCombined = 0;
     let byEmbedding = 0;
     for (const q of queries) {
@@ -96,7 +96,8 @@ describe('nearest past incidents with the real bundled model', () => {
     }
     console.log(`      top entry of the query's kind: combined ${byCombined}, embedding ${byEmbedding} of ${queries.length} (model ${modelVersion})`);
     // Measured with model 0.3.0 (4fe31beecc8e) and the shipped defaults: combined 23, embedding 20 of 28.
-    assert.ok(byCombined >= byEmbedding, `expected the combined ranking to match the query's kind at least as often, got ${byCombined} vs ${byEmbedding}`);
+    // Over the evaluation's 24 report services (npm run evaluate:few-shot, k = 3) the two rankings agree
+    // about as often (0.593 vs 0.593 on held-out kinds, 0.768 vs 0.785 on built-in kinds), so only a floor is checked.
     assert.ok(byCombined >= queries.length / 2, `expected at least half of ${queries.length} top entries of the query's kind, got ${byCombined}`);
   });
 });
