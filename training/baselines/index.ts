@@ -33,7 +33,7 @@ export interface BaselineOptions {
   readonly seed?: number;
   /** Epochs of the neural baselines (default 3; training time grows linearly with it). */
   readonly epochs?: number;
-  /** Adam learning rate of the neural baselines (default 3e-3). */
+  /** Adam learning rate of the GCN and GIN baselines (default 3e-3). */
   readonly learningRate?: number;
   /**
    * Peak Adam learning rate of the GRU baseline (default 3e-2, cosine-decayed over the run). The
