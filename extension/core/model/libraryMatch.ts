@@ -10,10 +10,7 @@ import { extractLibraryMetrics } from './libraryFrame';
 /** The library applied to one classified window. */
 export interface LibraryMatch {
   readonly verdict: BlendedVerdict;
-  /**
-   * Nearest past incidents (current model version only), nearest first: by the combined similarity
-   * the verdict uses when the query's metric data was given (combinedSimilarity set), else by embedding.
-   */
+  /** Nearest past incidents (current model version only, by embedding cosine), nearest first. */
   readonly nearest: readonly NearestIncident[];
   /** Entries used (embedded by the current model version). */
   readonly usedEntryCount: number;
@@ -53,8 +50,7 @@ function toQueryMetrics(query: LibraryQuery): readonly SignatureMetric[] {
  * signature cosine (when `query` gives the window's metric data) mixed with the embedding cosine;
  * a team label wins only when it is nearest, the head is unsure and the similarity is high enough.
  * Without `query` the embedding alone decides (weaker: see DEFAULT_COMPETITION_OPTIONS). Also
- * returns the `nearestCount` nearest entries, ranked by the same combined similarity when `query`
- * is given (rankNearestIncidents) and by embedding cosine without it. An empty or fully stale library gives
+ * returns the `nearestCount` nearest entries by embedding cosine. An empty or fully stale library gives
  * the base verdict unchanged (libraryWeight 0). `baseProbabilities` are the head's calibrated
  * probabilities by class name.
  */
@@ -73,9 +69,10 @@ export function matchLibrary(
   const verdict = competeVerdict(baseProbabilities, computeClassSimilarities(querySide, competing), options);
   return {
     verdict,
-    nearest: query === undefined
-      ? findNearestIncidents(embedding, current, nearestCount)
-      : rankNearestIncidents(querySide, current, competing, nearestCount, options.scale),
+    // By embedding cosine, the number shown beside each: ranking by the combined similarity was
+    // measured too (fewShotStudies.ts) and was no better (held-out kinds on new systems 0.815
+    // against 0.852 by embedding; same services 0.593 both, model 0.3.0, k = 3).
+    nearest: findNearestIncidents(embedding, current, nearestCount),
     usedEntryCount: current.length,
     staleEntryCount: entries.length - current.length,
   };
@@ -85,7 +82,7 @@ export function matchLibrary(
  * Combined similarity (sd units, combineSimilarity) of one library entry to the query: the
  * signature cosine counts only when both have a signature sharing a metric id, the embedding
  * cosine only when both have an embedding of the same length; −Infinity when neither counts.
- * The per-entry form of what competeVerdict compares per class.
+ * The per-entry form of what competeVerdict compares per class (the evaluation measures rankings by it).
  */
 export function computeEntrySimilarity(query: CompetingQuery, entry: CompetingEntry, scale: SimilarityScale): number {
   const signatureCosine = query.signature !== undefined && entry.signature !== undefined && hasSharedMetric(query.signature, entry.signature)
@@ -93,21 +90,4 @@ export function computeEntrySimilarity(query: CompetingQuery, entry: CompetingEn
   const embeddingCosine = query.embedding !== undefined && entry.embedding !== undefined && query.embedding.length === entry.embedding.length
     ? computeEmbeddingCosine(query.embedding, entry.embedding) : undefined;
   return combineSimilarity(signatureCosine, embeddingCosine, scale);
-}
-
-/**
- * The `count` entries most similar to the query by computeEntrySimilarity (highest first; ties by
- * id), each with its combinedSimilarity and its embedding cosine. `competing[i]` is `entries[i]` as
- * the competition sees it (label, embedding, signature). Entries of another embedding length are
- * skipped as in findNearestIncidents. count ≤ 0 or no entries → empty array.
- */
-export function rankNearestIncidents(query: CompetingQuery & { readonly embedding: ArrayLike<number> }, entries: readonly LibraryEntry[], competing: readonly CompetingEntry[], count: number, scale: SimilarityScale): NearestIncident[] {
-  if (entries.length !== competing.length) throw new Error(`expected one competing view per entry, got ${competing.length} for ${entries.length} entries`);
-  const byId = new Map(findNearestIncidents(query.embedding, entries, entries.length).map((n) => [n.id, n]));
-  return entries
-    .map((e, i) => ({ incident: byId.get(e.id), similarity: computeEntrySimilarity(query, competing[i], scale) }))
-    .filter((x): x is { incident: NearestIncident; similarity: number } => x.incident !== undefined)
-    .sort((a, b) => b.similarity - a.similarity || (a.incident.id < b.incident.id ? -1 : a.incident.id > b.incident.id ? 1 : 0))
-    .slice(0, Math.max(0, count))
-    .map(({ incident, similarity }) => ({ ...incident, combinedSimilarity: similarity }));
 }

@@ -122,13 +122,6 @@ export interface NearestIncident {
   readonly squaredDistance: number;
   /** Cosine similarity of the raw embeddings, −1..1 (1 = same direction); 0 when either is zero. */
   readonly cosineSimilarity: number;
-  /**
-   * Combined similarity (sd units, combineSimilarity: signature cosine when the entry shares a
-   * metric id with the query, mixed with the embedding cosine) that ranked the list. Set only when
-   * the query's metric data was given (rankNearestIncidents); otherwise the list is ranked by
-   * cosineSimilarity and this is undefined.
-   */
-  readonly combinedSimilarity?: number;
   readonly exportFile: string;
   readonly window: LibraryEntry['window'];
   readonly postmortem?: string;
