@@ -1,42 +1,15 @@
 import assert from 'node:assert/strict';
-import { join } from 'node:path';
+import { classify, MODEL_DIR, POOL, toEntry } from './realModelFixtures';
 import { loadClassifierModel, type LoadedClassifier } from '../../../extension/runtime/onnxRunner';
-import { computeCalibratedLogProbabilities } from '../../../extension/core/model/classifier';
-import { encodeBatch } from '../../../extension/core/model/encode';
-import { createLibraryEntry, formatLibraryModelVersion } from '../../../extension/core/model/libraryEntry';
+import { formatLibraryModelVersion } from '../../../extension/core/model/libraryEntry';
 import { matchLibrary } from '../../../extension/core/model/libraryMatch';
 import { DEFAULT_COMPETITION_OPTIONS } from '../../../extension/core/model/librarySignatureVerdict';
 import type { LibraryEntry } from '../../../extension/core/model/libraryTypes';
-import type { MetricWindow } from '../../../extension/core/model/types';
 import { buildSystemSpec, mixSeeds, sampleExamples, type SimClass, type TrainingExample } from '../../../training/simulator';
 import { CLASSES } from '../../../extension/core/model/types';
 
 // Real bundled model (media/model) on simulated incidents of one invented Larkspur Provisions
 // service: the team labels a few of its own connection-pool exhaustions, then meets new ones.
-const MODEL_DIR = join(__dirname, '../../../media/model');
-const POOL = 'connection_pool_exhaustion';
-
-interface Classified { readonly example: TrainingExample; readonly probabilities: Record<string, number>; readonly embedding: number[] }
-
-async function classify(model: LoadedClassifier, examples: readonly TrainingExample[]): Promise<Classified[]> {
-  const output = await model.runner.run(encodeBatch(examples.map((e) => e.metrics), model.spec.windowSpec));
-  return examples.map((example, i) => {
-    const logProbabilities = computeCalibratedLogProbabilities(output.logits.subarray(i * output.classCount, (i + 1) * output.classCount), model.spec.temperature);
-    return {
-      example,
-      probabilities: Object.fromEntries(model.spec.classes.map((c, j) => [c, Math.exp(logProbabilities[j])])),
-      embedding: Array.from(output.embedding.subarray(i * output.embeddingSize, (i + 1) * output.embeddingSize)),
-    };
-  });
-}
-
-function toEntry(c: Classified, index: number, modelVersion: string): LibraryEntry {
-  return createLibraryEntry({
-    id: `20261202T0${index}0000Z-00000${index}`, label: c.example.label, window: { startMs: 0, endMs: 1 }, baseline: { startMs: 0, endMs: 1 },
-    exportSha256: '0'.repeat(64), exportFile: `exports/pantry-db-${index}.csv`, createdMs: 0, modelVersion, embedding: c.embedding,
-    metrics: c.example.metrics.map((m: MetricWindow) => ({ ...m, name: m.id })),
-  });
-}
 
 /** First simulated system (from seed 500 on) that exports a connection-pool metric. */
 function findSystemWithPoolMetrics(): number {
