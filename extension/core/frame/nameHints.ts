@@ -2,8 +2,9 @@ import { normalizeMetricName } from './families';
 
 /*
  * Hints the model reads from a metric's name and labels, besides its family: where it is measured
- * from (vantage) and which way is "worse" (polarity). Families group metrics; these tell members
- * of one family apart (server, client and gateway latency; CPU busy and CPU idle).
+ * from (vantage), which way is "worse" (polarity), and whether it is a tail percentile. Families
+ * group metrics; these tell members of one family apart (server, client and gateway latency; CPU
+ * busy and CPU idle; p50 and p99).
  */
 
 /**
