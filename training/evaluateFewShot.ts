@@ -27,14 +27,13 @@ import { createLibraryEntry, formatLibraryModelVersion, toMetricWindows } from '
 import { computeCalibratedLogProbabilities } from '../extension/core/model/classifier';
 import { encodeBatch } from '../extension/core/model/encode';
 import { loadClassifierModel } from '../extension/runtime/onnxRunner';
-import { readFileSync } from 'node:fs';
 import { computeAccuracy, computeMacroF1, drawLibrary, drawSupport, mean, predictBase, type EmbeddedExample, type EvaluationGroup, type KResult } from './fewShotScoring';
 import { calibrateCompetition, computeEpisodeSimilarities, describeCompetition, scoreCompetition } from './fewShotCompetition';
 import { computeMetricSignature } from '../extension/core/model/librarySignature';
 import { DEFAULT_COMPETITION_OPTIONS, type CompetitionOptions } from '../extension/core/model/librarySignatureVerdict';
-import { join } from 'node:path';
 import { writeSideStudies } from './fewShotStudies';
-import { buildFewShotSplits, buildSplits, buildSystemSpec, DEFAULT_TRAIN_SYSTEMS, drawSystemSeeds, HELD_OUT_CLASSES, mixSeeds, sampleExamples, type SimClass, type TrainingExample } from './simulator';
+import { parseFewShotArgs, readTrainingSeed, readTrainSystems } from './fewShotArgs';
+import { buildFewShotSplits, buildSplits, buildSystemSpec, drawSystemSeeds, HELD_OUT_CLASSES, mixSeeds, sampleExamples, type SimClass, type TrainingExample } from './simulator';
 
 /** The bundled model seen as: calibrated probabilities over CLASSES and an embedding per example. */
 interface Embedder {
@@ -153,31 +152,7 @@ function toStoredMetrics(example: TrainingExample): MetricWindow[] {
   return toMetricWindows(entry);
 }
 
-function parseArgs(argv: readonly string[]): { seed?: number; episodes: number; modelDir: string; budget: number } {
-  const get = (name: string): string | undefined => {
-    const i = argv.indexOf(`--${name}`);
-    return i >= 0 ? argv[i + 1] : undefined;
-  };
-  const seed = get('seed');
-  return { ...(seed !== undefined ? { seed: Number(seed) } : {}), episodes: Number(get('episodes') ?? '10'), modelDir: get('model') ?? 'media/model', budget: Number(get('f1-budget') ?? '1') };
-}
-
 const format = (x: number): string => x.toFixed(3);
-
-/** The seed the bundled model was trained with (its splits' systems are then disjoint from ours). */
-function readTrainingSeed(modelDir: string): number {
-  const json = JSON.parse(readFileSync(join(modelDir, 'classifier.json'), 'utf8')) as { training?: { seed?: unknown } };
-  const seed = json.training?.seed;
-  if (typeof seed !== 'number') throw new Error(`${modelDir}/classifier.json: expected training.seed as a number (pass --seed), got ${JSON.stringify(seed)}`);
-  return seed;
-}
-
-/** How many systems the bundled model's train split used (their seeds are reserved here too). */
-function readTrainSystems(modelDir: string): number {
-  const json = JSON.parse(readFileSync(join(modelDir, 'classifier.json'), 'utf8')) as { training?: { trainSystems?: unknown } };
-  const count = json.training?.trainSystems;
-  return typeof count === 'number' && Number.isInteger(count) && count > 0 ? count : DEFAULT_TRAIN_SYSTEMS;
-}
 
 /** Split groups (or, for one group, its held-out queries by system) into calibration and report halves. */
 function splitInHalves(groups: readonly EvaluationGroup[]): [EvaluationGroup[], EvaluationGroup[]] {
@@ -263,7 +238,7 @@ function writeTable(title: string, calibration: readonly EvaluationGroup[], repo
 
 /** Run the evaluation and print the tables (markdown). */
 export async function runFewShotEvaluation(argv: readonly string[]): Promise<void> {
-  const args = parseArgs(argv);
+  const args = parseFewShotArgs(argv);
   const startedMs = Date.now();
   const seed = args.seed ?? readTrainingSeed(args.modelDir);
   const embedder = await loadEmbedder(args.modelDir);
