@@ -28,12 +28,12 @@ import { computeCalibratedLogProbabilities } from '../extension/core/model/class
 import { encodeBatch } from '../extension/core/model/encode';
 import { loadClassifierModel } from '../extension/runtime/onnxRunner';
 import { computeAccuracy, computeMacroF1, drawLibrary, drawSupport, mean, predictBase, type EmbeddedExample, type EvaluationGroup, type KResult } from './fewShotScoring';
-import { calibrateCompetition, computeEpisodeSimilarities, describeCompetition, scoreCompetition } from './fewShotCompetition';
+import { calibrateCompetition, computeEpisodeSimilarities, describeCompetition, scoreCompetition, writeKeyMetricSplit } from './fewShotCompetition';
 import { computeMetricSignature } from '../extension/core/model/librarySignature';
 import { DEFAULT_COMPETITION_OPTIONS, type CompetitionOptions } from '../extension/core/model/librarySignatureVerdict';
 import { writeSideStudies } from './fewShotStudies';
 import { parseFewShotArgs, readTrainingSeed, readTrainSystems } from './fewShotArgs';
-import { buildFewShotSplits, buildSplits, buildSystemSpec, drawSystemSeeds, HELD_OUT_CLASSES, mixSeeds, sampleExamples, type SimClass, type TrainingExample } from './simulator';
+import { buildFewShotSplits, buildSplits, buildSystemSpec, drawSystemSeeds, HELD_OUT_CLASSES, KEY_ROLES, mixSeeds, sampleExamples, type SimClass, type TrainingExample } from './simulator';
 
 /** The bundled model seen as: calibrated probabilities over CLASSES and an embedding per example. */
 interface Embedder {
@@ -139,7 +139,10 @@ function calibrateBlend(groups: readonly EvaluationGroup[], heldOutClasses: read
 
 async function embedExamples(embedder: Embedder, examples: readonly TrainingExample[]): Promise<EmbeddedExample[]> {
   const out = await embedder.embed(examples.map((e) => e.metrics));
-  return examples.map((e, i) => ({ label: e.label, systemId: e.systemId, probabilities: out[i].probabilities, embedding: out[i].embedding, signature: computeMetricSignature(e.metrics) }));
+  return examples.map((e, i) => ({
+    label: e.label, systemId: e.systemId, probabilities: out[i].probabilities, embedding: out[i].embedding, signature: computeMetricSignature(e.metrics),
+    exportsKeyMetric: e.truth?.some((t) => KEY_ROLES[e.label].includes(t.role)) ?? false,
+  }));
 }
 
 /** Support examples as the library stores them (downsampled), to measure what storage costs. */
@@ -232,6 +235,7 @@ function writeTable(title: string, calibration: readonly EvaluationGroup[], repo
     for (const [name, o] of rules) if (o !== undefined) process.stdout.write(formatRow(name, scoreCompetition(k, report, sims, o)));
     process.stdout.write(formatRow('compete (product defaults)', scoreCompetition(k, report, sims, DEFAULT_COMPETITION_OPTIONS)));
   }
+  writeKeyMetricSplit(report, classes, args.episodes);
   process.stdout.write(`\n(table: ${((Date.now() - startedMs) / 1000).toFixed(1)} s)\n`);
   return rules;
 }

@@ -118,7 +118,7 @@ export function calibrateCompetition(groups: readonly EvaluationGroup[], heldOut
       builtIn: groups.flatMap((g, gi) => g.builtIn.map((q, i) => toGateCase(q, episode[gi].builtIn[i], ranked))),
     }));
     for (const acceptSimilarity of [-0.5, 0, 0.25, 0.5, 0.75, 1, 1.25, 1.5, 1.75, 2, 2.5, 3]) {
-      for (const headConfidenceCap of [0.5, 0.6, 0.7, 0.8, 0.9, 0.95, 1]) {
+      for (const headConfidenceCap of [0.5, 0.6, 0.7, 0.8, 0.9, 0.95, 0.99, 1]) {
         for (const [acceptMargin, overrideMargin] of margins.flatMap((m) => overrides.map((o) => [m, o] as const))) {
           const candidate = scoreGate(episodes, builtInTruth, f1Base, { ...ranked, acceptSimilarity, acceptMargin, overrideMargin, headConfidenceCap });
           if (candidate.drop <= f1BudgetPoints && (best === undefined || candidate.accuracy > best.accuracy)) best = { options: candidate.options, accuracy: candidate.accuracy, episodes };
@@ -139,3 +139,21 @@ export function calibrateCompetition(groups: readonly EvaluationGroup[], heldOut
 export const describeCompetition = (o: CompetitionOptions): string =>
   `${o.classAggregate} of each class, signatureWeight ${o.scale.signatureWeight}, scale sig ${o.scale.signatureMean}±${o.scale.signatureSd} emb ${o.scale.embeddingMean}±${o.scale.embeddingSd}, acceptSimilarity ${o.acceptSimilarity}, acceptMargin ${o.acceptMargin}, overrideMargin ${o.overrideMargin}, recurrenceSimilarity ${o.recurrenceSimilarity}, headConfidenceCap ${o.headConfidenceCap}, maxWeight ${o.maxWeight}, temperature ${o.temperature}`;
 
+/**
+ * Where the library can tell a held-out type apart at all: the product defaults' k = 3 held-out
+ * accuracy on the queries whose window exports a metric carrying their type's key signal (pool
+ * usage or pending requests; CPU steal) and on the rest. Without one, a pool exhaustion reaches the
+ * metrics only as dependency latency, a CPU steal only as CPU pressure: built-in look-alikes.
+ */
+export function writeKeyMetricSplit(report: readonly EvaluationGroup[], classes: readonly string[], episodes: number): void {
+  const sims = computeEpisodeSimilarities(report, classes, 3, episodes);
+  const tally = { with: [0, 0], without: [0, 0] };
+  for (const episode of sims) report.forEach((g, gi) => g.heldOut.forEach((q, i) => {
+    const slot = q.exportsKeyMetric === true ? tally.with : tally.without;
+    slot[1] += 1;
+    if (competeVerdict(q.probabilities, episode[gi].heldOut[i]).className === q.label) slot[0] += 1;
+  }));
+  const share = tally.with[1] / Math.max(1, tally.with[1] + tally.without[1]);
+  const rate = ([right, all]: number[]): string => (all === 0 ? 'n/a' : (right / all).toFixed(3));
+  process.stdout.write(`\nproduct defaults, k = 3, held-out queries that export a key metric of their type (${(100 * share).toFixed(1)} %): accuracy ${rate(tally.with)}; the rest: ${rate(tally.without)}\n`);
+}

@@ -15,6 +15,8 @@ export interface EmbeddedExample {
   readonly embedding: Float64Array;
   /** Name-aware metric signature (librarySignature.ts) of the example's window. */
   readonly signature?: MetricSignature;
+  /** Simulator truth: the window exports a metric that carries its class's key signal (KEY_ROLES). */
+  readonly exportsKeyMetric?: boolean;
 }
 
 /**

@@ -1,6 +1,6 @@
 /** Public surface of the fault-injection simulator (training only; never shipped). */
 export { generateSystem, type GenerateOptions } from './generateSystem';
-export { sampleExamples, sampleOneExample, type SampleOptions, type Difficulty } from './sampleExamples';
+export { KEY_ROLES, sampleExamples, sampleOneExample, type SampleOptions, type Difficulty } from './sampleExamples';
 export { buildSplits, buildFewShotSplits, describeSplits, DEFAULT_TRAIN_SYSTEMS, drawSystemSeeds, HELD_OUT_CLASSES, type SplitOptions, type Splits, type FewShotOptions, type FewShotSplits } from './buildSplits';
 export { buildSystemSpec, formatSeriesId, SERVICES, type SystemSpec } from './systemSpec';
 export { convertCounterToRates } from './counterRates';

@@ -53,7 +53,7 @@ const DURATION_MS: Readonly<Record<SimClass, readonly [number, number]>> = {
 };
 
 /** Roles that carry each fault's key signal; dropped together at random (vantage points). */
-const KEY_ROLES: Readonly<Record<SimClass, readonly string[]>> = {
+export const KEY_ROLES: Readonly<Record<SimClass, readonly string[]>> = {
   normal: [],
   cpu_saturation: ['cpuUtil', 'cpuIdle'],
   memory_leak: ['memUsed', 'memRatio', 'memAvailable'],

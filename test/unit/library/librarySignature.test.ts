@@ -1,7 +1,7 @@
 import assert from 'node:assert/strict';
 import * as tf from '@tensorflow/tfjs-core';
 import '@tensorflow/tfjs-backend-cpu';
-import { combineSimilarity, computeEmbeddingCosine, computeMetricSignature, computeSignatureCosine, SIGNATURE_FEATURES } from '../../../extension/core/model/librarySignature';
+import { combineSimilarity, computeEmbeddingCosine, computeMetricSignature, computeSignatureCosine, SIGNATURE_DEAD_BAND, SIGNATURE_FEATURES } from '../../../extension/core/model/librarySignature';
 import { createLibraryEntry, toMetricWindows } from '../../../extension/core/model/libraryEntry';
 import { createRandom } from '../../../training/simulator';
 
@@ -43,16 +43,31 @@ describe('metric signature cosine', () => {
 });
 
 describe('computeMetricSignature', () => {
-  it('matches a worked example: a window held at median + 1.4826·MAD·sinh(1) reads 1 on every kept feature', () => {
+  it('matches a worked example: a window held at median + 1.4826·MAD·sinh(2) reads 1 on every kept feature', () => {
     // Baseline 10, 12, 8, 11, 9: median 10, MAD 1, robust scale 1.4826·MAD (Iglewicz & Hoaglin 1993,
-    // common practice). A window at 10 + 1.4826·sinh(1) is z = sinh(1), squashed asinh(z) = 1 at
-    // every sample, so the mean, the four quarter means, max and min are all 1.
-    const level = 10 + 1.4826 * Math.sinh(1);
+    // common practice). A window at 10 + 1.4826·sinh(2) is z = sinh(2), squashed asinh(z) = 2 at
+    // every sample, so the mean, the four quarter means, max and min are all 2, and 2 − 1 = 1 after
+    // the dead band.
+    assert.equal(SIGNATURE_DEAD_BAND, 1);
+    const level = 10 + 1.4826 * Math.sinh(2);
     const signature = computeMetricSignature([{ id: 'pantry_db_pool_in_use', family: 'saturation', baseline: [10, 12, 8, 11, 9], window: [level, level, level, level] }]);
     const values = signature.get('pantry_db_pool_in_use');
     assert.ok(values);
     assert.equal(values.length, SIGNATURE_FEATURES.length);
     for (const v of values) assert.ok(Math.abs(v - 1) < 1e-5, `expected 1, got ${v}`);
+  });
+
+  it('reads 0 for a window inside the dead band and keeps the sign below the baseline', () => {
+    // Same baseline as above: z = sinh(0.5) squashes to 0.5, inside the dead band (→ 0); z = −sinh(3)
+    // squashes to −3 (→ −2).
+    const inside = 10 + 1.4826 * Math.sinh(0.5);
+    const below = 10 - 1.4826 * Math.sinh(3);
+    const signature = computeMetricSignature([
+      { id: 'inside', family: 'latency', baseline: [10, 12, 8, 11, 9], window: [inside, inside, inside, inside] },
+      { id: 'below', family: 'latency', baseline: [10, 12, 8, 11, 9], window: [below, below, below, below] },
+    ]);
+    for (const v of signature.get('inside')!) assert.ok(Math.abs(v) < 1e-6, `expected 0, got ${v}`);
+    for (const v of signature.get('below')!) assert.ok(Math.abs(v + 2) < 1e-5, `expected −2, got ${v}`);
   });
 
   it('leaves out metrics the encoder cannot normalise and keeps the first of a repeated id', () => {
@@ -63,7 +78,7 @@ describe('computeMetricSignature', () => {
       { id: 'gaps', family: 'cpu', baseline: [Number.NaN, Number.NaN, 1, 2], window: [5, 6, 7] },
     ]);
     assert.deepEqual([...signature.keys()], ['a']);
-    assert.ok(signature.get('a')![0] > 1, 'the first "a" (window above its baseline) is kept');
+    assert.ok(signature.get('a')![0] > 0, 'the first "a" (window above its baseline) is kept');
     assert.equal(computeMetricSignature([]).size, 0);
   });
 
