@@ -140,10 +140,11 @@ export const describeCompetition = (o: CompetitionOptions): string =>
   `${o.classAggregate} of each class, signatureWeight ${o.scale.signatureWeight}, scale sig ${o.scale.signatureMean}±${o.scale.signatureSd} emb ${o.scale.embeddingMean}±${o.scale.embeddingSd}, acceptSimilarity ${o.acceptSimilarity}, acceptMargin ${o.acceptMargin}, overrideMargin ${o.overrideMargin}, recurrenceSimilarity ${o.recurrenceSimilarity}, headConfidenceCap ${o.headConfidenceCap}, maxWeight ${o.maxWeight}, temperature ${o.temperature}`;
 
 /**
- * Where the library can tell a held-out type apart at all: the product defaults' k = 3 held-out
- * accuracy on the queries whose window exports a metric carrying their type's key signal (pool
- * usage or pending requests; CPU steal) and on the rest. Without one, a pool exhaustion reaches the
- * metrics only as dependency latency, a CPU steal only as CPU pressure: built-in look-alikes.
+ * The product defaults' k = 3 held-out accuracy on the queries whose window exports a metric that
+ * carries their type's key signal (pool usage or pending requests; CPU steal) and on the rest.
+ * Without one, a pool exhaustion reaches the metrics only as dependency latency and a CPU steal
+ * only as CPU pressure (built-in look-alikes); with one, the head is often surer of its own
+ * look-alike class, which closes the gate.
  */
 export function writeKeyMetricSplit(report: readonly EvaluationGroup[], classes: readonly string[], episodes: number): void {
   const sims = computeEpisodeSimilarities(report, classes, 3, episodes);

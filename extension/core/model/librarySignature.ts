@@ -25,8 +25,9 @@ export const SIGNATURE_FEATURES: readonly number[] = [0, 1, 2, 3, 4, MAX_FEATURE
  * Dead band of a signature feature (squashed units; asinh(z) = 1 ↔ robust z ≈ 1.18): each kept
  * feature x becomes sign(x)·max(|x| − SIGNATURE_DEAD_BAND, 0). The many metrics that only wander
  * inside their baseline's noise then weigh nothing in a cosine, so the few that carry an incident
- * decide it. Chosen on the few-shot evaluation's same-system groups (0.5, 1 and 1.5 measured; 1
- * and 1.5 alike, both ahead of no dead band by 3–6 points of held-out accuracy at k = 3).
+ * decide it. Chosen on the few-shot evaluation's same-system groups (24 services a protocol, k = 3,
+ * best gate setting within a 2-point budget: 0, 0.5, 1 and 1.5 measured; 1 and 1.5 alike, ahead of
+ * no dead band by 1–5 points of held-out accuracy depending on the protocol).
  */
 export const SIGNATURE_DEAD_BAND = 1;
 
@@ -46,8 +47,9 @@ export type MetricSignature = ReadonlyMap<string, Float64Array>;
  * (window by bucket means, baseline by picking samples, ≤ LIBRARY_MAX_POINTS points each), so a
  * query read at full resolution and a stored entry of the same data give the same signature; then
  * encoded with `spec` (a fixed product setting, not the model's, so signatures survive model
- * changes), reduced to SIGNATURE_FEATURES and passed through the dead band. Metrics the encoder cannot normalise (too short,
- * baseline of gaps, window mostly gaps — see encodeMetricRow) are left out. A repeated id keeps
+ * changes), reduced to SIGNATURE_FEATURES and passed through the dead band. Metrics the encoder
+ * cannot normalise (too short, baseline of gaps, window mostly gaps — see encodeMetricRow) are left
+ * out. A repeated id keeps
  * its first metric. Empty input, or no usable metric, gives an empty signature.
  */
 export function computeMetricSignature(metrics: readonly SignatureMetric[], spec: WindowSpec = DEFAULT_WINDOW_SPEC): MetricSignature {
