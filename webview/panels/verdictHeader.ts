@@ -32,6 +32,7 @@ function renderLibrary(library: LibraryView | undefined): HTMLElement | null {
   if (!library || (library.matchText === '' && library.nearest.length === 0)) return null;
   return el('section', { className: 'verdict-library', attrs: { 'aria-label': 'Incident library' } }, [
     library.matchText ? el('p', { className: 'verdict-library-match', text: library.matchText }) : null,
+    library.movedAlikeText ? el('p', { className: 'verdict-library-moved', text: library.movedAlikeText }) : null,
     library.nearest.length ? el('p', { className: 'verdict-kicker', text: 'Similar past incidents' }) : null,
     library.nearest.length ? el('ul', { className: 'verdict-notes verdict-library-nearest' }, library.nearest.map(renderNearest)) : null,
   ]);

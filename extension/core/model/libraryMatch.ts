@@ -1,6 +1,6 @@
 import type { LibraryEntry } from './libraryTypes';
 import { toMetricWindows } from './libraryEntry';
-import { combineSimilarity, computeEmbeddingCosine, computeMetricSignature, computeSignatureCosine, hasSharedMetric, type MetricSignature, type SignatureMetric, type SimilarityScale } from './librarySignature';
+import { combineSimilarity, computeEmbeddingCosine, computeMetricSignature, computeSignatureCosine, findSharedMovers, hasSharedMetric, type MetricSignature, type SignatureMetric, type SimilarityScale } from './librarySignature';
 import { competeVerdict, computeClassSimilarities, DEFAULT_COMPETITION_OPTIONS, type CompetingEntry, type CompetingQuery, type CompetitionOptions } from './librarySignatureVerdict';
 import { findNearestIncidents, type BlendedVerdict, type NearestIncident } from './libraryVerdict';
 import type { WindowSpec } from './encode';
@@ -64,11 +64,12 @@ export function matchLibrary(
   nearestCount = 3,
 ): LibraryMatch {
   const current = entries.filter((e) => e.modelVersion === modelVersion && e.embedding.length === embedding.length);
-  const querySide = { embedding, signature: query === undefined ? undefined : computeMetricSignature(toQueryMetrics(query), query.windowSpec) };
+  const queryMetrics = query === undefined ? undefined : toQueryMetrics(query);
+  const querySide = { embedding, signature: queryMetrics === undefined ? undefined : computeMetricSignature(queryMetrics, query?.windowSpec) };
   const competing = current.map((e) => ({ label: e.label, embedding: e.embedding, signature: query === undefined ? undefined : getEntrySignature(e, query.windowSpec) }));
-  const verdict = competeVerdict(baseProbabilities, computeClassSimilarities(querySide, competing), options);
+  const blended = competeVerdict(baseProbabilities, computeClassSimilarities(querySide, competing), options);
   return {
-    verdict,
+    verdict: explainMatch(blended, querySide.signature, competing, new Map((queryMetrics ?? []).map((m) => [m.id, m.family]))),
     // By embedding cosine, the number shown beside each: ranking by the combined similarity was
     // measured too (fewShotStudies.ts) and was no better (held-out kinds on new systems 0.815
     // against 0.852 by embedding; same services 0.593 both, model 0.3.0, k = 3).
@@ -76,6 +77,15 @@ export function matchLibrary(
     usedEntryCount: current.length,
     staleEntryCount: entries.length - current.length,
   };
+}
+
+/** The verdict with the metrics that moved alike in the window and in the matched label's incidents, when it has a library match and there are some. */
+function explainMatch(verdict: BlendedVerdict, query: MetricSignature | undefined, entries: readonly { readonly label: string; readonly signature?: MetricSignature }[], families: ReadonlyMap<string, string>): BlendedVerdict {
+  const match = verdict.libraryMatch;
+  if (match === undefined || query === undefined) return verdict;
+  const signatures = entries.filter((e) => e.label === match.label && e.signature !== undefined).map((e) => e.signature as MetricSignature);
+  const movedAlike = findSharedMovers(query, signatures, 3, (id) => families.get(id) ?? 'other');
+  return movedAlike.length === 0 ? verdict : { ...verdict, libraryMatch: { ...match, movedAlike } };
 }
 
 /**

@@ -152,3 +152,59 @@ export function combineSimilarity(signatureCosine: number | undefined, embedding
   if (zSignature !== undefined && zEmbedding !== undefined) return w * zSignature + (1 - w) * zEmbedding;
   return zSignature ?? zEmbedding ?? Number.NEGATIVE_INFINITY;
 }
+
+/** A metric that moved the same way in a window and in a library label's incidents. */
+export interface SharedMover {
+  readonly id: string;
+  readonly direction: 'up' | 'down';
+}
+
+/**
+ * The metrics that moved alike in `query` and in at least half of `entries` (one label's
+ * incidents), strongest first, at most `count`: ids whose signature lies outside the dead band on
+ * both sides with the same direction (the sign of the feature of largest magnitude). Strength is
+ * the mean, over the entries that agree, of the smaller of the two vector norms (how far both
+ * moved). Ties by id. With `familyOf`, the strongest mover of each family comes first (so three
+ * percentiles of one latency do not fill the list), then the rest by strength. What the engineer
+ * can check a library match against; not the match itself.
+ */
+export function findSharedMovers(query: MetricSignature, entries: readonly MetricSignature[], count = 3, familyOf?: (id: string) => string): SharedMover[] {
+  const needed = Math.ceil(entries.length / 2);
+  const movers: { id: string; direction: 'up' | 'down'; strength: number }[] = [];
+  for (const [id, vector] of query) {
+    const direction = readDirection(vector);
+    if (direction === 0) continue;
+    let agreeing = 0;
+    let strength = 0;
+    for (const entry of entries) {
+      const other = entry.get(id);
+      if (other === undefined || readDirection(other) !== direction) continue;
+      agreeing += 1;
+      strength += Math.min(norm(vector), norm(other));
+    }
+    if (agreeing > 0 && agreeing >= needed) movers.push({ id, direction: direction > 0 ? 'up' : 'down', strength: strength / agreeing });
+  }
+  movers.sort((a, b) => b.strength - a.strength || (a.id < b.id ? -1 : a.id > b.id ? 1 : 0));
+  const seenFamilies = new Set<string>();
+  const leaders = familyOf === undefined ? movers : movers.filter((m) => {
+    const family = familyOf(m.id);
+    if (seenFamilies.has(family)) return false;
+    seenFamilies.add(family);
+    return true;
+  });
+  const ordered = [...leaders, ...movers.filter((m) => !leaders.includes(m))];
+  return ordered.slice(0, Math.max(0, count)).map(({ id, direction }) => ({ id, direction }));
+}
+
+/** Sign (−1, 0, 1) of a signature vector's feature of largest magnitude (first of ties). */
+function readDirection(vector: Float64Array): number {
+  let best = 0;
+  for (const x of vector) if (Math.abs(x) > Math.abs(best)) best = x;
+  return Math.sign(best);
+}
+
+function norm(vector: Float64Array): number {
+  let sum = 0;
+  for (const x of vector) sum += x * x;
+  return Math.sqrt(sum);
+}

@@ -1,4 +1,5 @@
 import type { LibraryEntry } from './libraryTypes';
+import type { SharedMover } from './librarySignature';
 import {
   DEFAULT_PROTOTYPE_OPTIONS, prepareEmbedding, squaredDistance,
   type PrototypeOptions, type PrototypeScore,
@@ -47,7 +48,12 @@ export interface BlendedVerdict {
    * Set when the winning class got more of its probability from the library than from the bundled
    * head: shown as "matches your past incident <label> (n examples)".
    */
-  readonly libraryMatch?: { readonly label: string; readonly exampleCount: number };
+  readonly libraryMatch?: {
+    readonly label: string;
+    readonly exampleCount: number;
+    /** Metrics that moved alike in this window and in that label's incidents (findSharedMovers); absent when none or no metric data. */
+    readonly movedAlike?: readonly SharedMover[];
+  };
 }
 
 /**

@@ -70,8 +70,10 @@ function renderVerdict(f: Finding): string[] {
   const what = v.libraryMatch
     ? `matches your past incident **${v.libraryMatch.label}** (${v.libraryMatch.exampleCount} example${v.libraryMatch.exampleCount === 1 ? '' : 's'})`
     : `looks like **${describeClass(v.className)}**`;
+  const moved = v.libraryMatch?.movedAlike ?? [];
   return [
     `**Classifier estimate:** it is *${describeProbability(v.probability)}* (${pct(v.probability)}, calibrated) that this window ${what}; runner-up ${describeClass(v.runnerUp.className)} (${pct(v.runnerUp.probability)}).`,
+    ...(moved.length > 0 ? ['', `Moved alike here and in those incidents (check them): ${moved.map((m) => `\`${m.id.replace(/`/g, "'")}\` ${m.direction === 'up' ? '↑' : '↓'}`).join(', ')}.`] : []),
   ];
 }
 

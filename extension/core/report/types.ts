@@ -21,7 +21,12 @@ export interface VerdictSummary {
   /** Calibrated probability per class. */
   readonly probabilities: Readonly<Record<string, number>>;
   /** Set when an incident-library class won: label and number of examples behind it. */
-  readonly libraryMatch?: { readonly label: string; readonly exampleCount: number };
+  readonly libraryMatch?: {
+    readonly label: string;
+    readonly exampleCount: number;
+    /** Metrics (series ids) that moved alike in this window and in that label's incidents, strongest first. */
+    readonly movedAlike?: readonly { readonly id: string; readonly direction: 'up' | 'down' }[];
+  };
 }
 
 /** Baseline-vs-incident effect sizes of one metric. */

@@ -40,6 +40,7 @@ export function buildLibraryView(finding: Finding, linked?: readonly NearestInci
   const examples = match ? `${match.exampleCount} example${match.exampleCount === 1 ? '' : 's'}` : '';
   return {
     matchText: match ? `Matches your past incident ${match.label} (${examples})` : '',
+    movedAlikeText: match?.movedAlike?.length ? `Moved alike here and in those incidents: ${match.movedAlike.map((m) => `${m.id} ${m.direction === 'up' ? '↑' : '↓'}`).join(', ')}` : '',
     nearest: linked !== undefined
       ? linked.map(buildNearestIncidentLink)
       : (nearest ?? []).map((n) => ({ label: n.label, similarityText: formatSimilarity(n.similarity), postmortem: n.postmortem ?? '' })),

@@ -98,6 +98,8 @@ export interface NearestIncidentView {
 export interface LibraryView {
   /** "Matches your past incident <label> (n examples)" when a library class won; '' otherwise. */
   readonly matchText: string;
+  /** "Moved alike here and in those incidents: a ↑, b ↓" under a match; '' when none. */
+  readonly movedAlikeText: string;
   /** Nearest past incidents, nearest first (may be empty). */
   readonly nearest: readonly NearestIncidentView[];
 }

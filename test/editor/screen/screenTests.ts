@@ -164,7 +164,11 @@ export async function runScreenTests(input: ScreenTestInput): Promise<{ readonly
     assert.match(nearestText, new RegExp(`^${LIBRARY_LABEL} — similarity \\d`), 'the nearest past incident is the labelled one');
     const matchLine = similarView.locator('.verdict-library-match');
     const matchText = (await matchLine.count()) > 0 ? (await matchLine.textContent()) ?? '' : '';
-    if (matchText) assert.equal(matchText, `Matches your past incident ${LIBRARY_LABEL} (1 example)`);
+    if (matchText) {
+      assert.equal(matchText, `Matches your past incident ${LIBRARY_LABEL} (1 example)`);
+      const movedText = (await similarView.locator('.verdict-library-moved').textContent()) ?? '';
+      assert.match(movedText, /^Moved alike here and in those incidents: .*cpu.* ↑/i, 'the metrics that moved alike are shown under the match');
+    }
     await similarView.locator('.verdict-caution', { hasText: 'not a root cause' }).waitFor();
     await shot('05-similar-export-library-match');
     log(`similar export: nearest "${nearestText}"${matchText ? `; "${matchText}"` : ''}`);

@@ -116,8 +116,11 @@ describe('Incident library in a real editor (trusted workspace)', () => {
     assert.ok(match.similarity <= 1 + 1e-9 && match.similarity >= 0.8, `cosine similarity ${match.similarity}`);
     console.log(`[editor-suite]     nearest ${match.label} similarity ${match.similarity.toFixed(3)}; verdict ${finding.verdict.className} ${finding.verdict.probability.toFixed(2)}${finding.verdict.libraryMatch ? ' (library match)' : ''}`);
     if (finding.verdict.libraryMatch) {
-      assert.deepEqual(finding.verdict.libraryMatch, { label: LABEL, exampleCount: 1 });
+      const { movedAlike, ...match } = finding.verdict.libraryMatch;
+      assert.deepEqual(match, { label: LABEL, exampleCount: 1 });
       assert.equal(finding.verdict.className, LABEL);
+      // A CPU saturation of basket-api both times: the CPU is among the metrics that moved alike.
+      assert.ok(movedAlike?.some((m) => /cpu/i.test(m.id) && m.direction === 'up'), `expected a CPU metric moved up alike, got ${JSON.stringify(movedAlike)}`);
     }
     // The findings block lists the past incident with its postmortem link, under the caution line.
     const doc = await vscode.workspace.openTextDocument(postmortemUri);
@@ -128,7 +131,10 @@ describe('Incident library in a real editor (trusted workspace)', () => {
       assert.ok(outcome.block.includes('#### Similar past incidents (incident library)'), 'nearest incidents section');
       assert.ok(outcome.block.includes(`- ${LABEL} — similarity `) && outcome.block.includes('[postmortem](postmortems/2026-01-14-basket-checkout-slow.md)'));
       assert.match(outcome.block, /not a root cause/i);
-      if (finding.verdict.libraryMatch) assert.ok(outcome.block.includes(`matches your past incident **${LABEL}** (1 example)`));
+      if (finding.verdict.libraryMatch) {
+        assert.ok(outcome.block.includes(`matches your past incident **${LABEL}** (1 example)`));
+        assert.match(outcome.block, /Moved alike here and in those incidents \(check them\):.*`[^`]*cpu[^`]*` ↑/i);
+      }
     } finally {
       await vscode.window.showTextDocument(doc);
       await vscode.commands.executeCommand('workbench.action.revertAndCloseActiveEditor');

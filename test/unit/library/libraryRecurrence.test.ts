@@ -38,15 +38,27 @@ describe('incident library with the real bundled model: a recurrence on the same
   it('recognises most new pool exhaustions of that service as the team\'s past incident', async () => {
     const queries = await classify(model, draw(3, 12, [POOL]));
     let recognised = 0;
+    let withPoolMetric = 0;
+    let poolMetricNamed = 0;
     for (const q of queries) {
       const match = matchLibrary(q.probabilities, q.embedding, library, modelVersion, { metrics: q.example.metrics });
       if (match.verdict.libraryMatch?.label === POOL) {
         recognised += 1;
         assert.equal(match.verdict.className, POOL);
         assert.equal(match.verdict.libraryMatch.exampleCount, 3);
+        // The explanation names metrics of this window only, each with the way it moved.
+        const roles = new Map(q.example.metrics.map((m, k) => [m.id, q.example.truth?.[k]?.role ?? '']));
+        const moved = match.verdict.libraryMatch.movedAlike ?? [];
+        for (const m of moved) assert.ok(roles.has(m.id), `named ${m.id}, which the window does not export`);
+        if ([...roles.values()].some((r) => r.startsWith('pool'))) {
+          withPoolMetric += 1;
+          if (moved.some((m) => roles.get(m.id)!.startsWith('pool'))) poolMetricNamed += 1;
+        }
       }
     }
-    console.log(`      recognised ${recognised} of ${queries.length} (system ${system}, model ${modelVersion})`);
+    console.log(`      recognised ${recognised} of ${queries.length} (system ${system}, model ${modelVersion}); a pool metric named as moved alike in ${poolMetricNamed} of the ${withPoolMetric} that export one`);
+    // A pool exhaustion shows first on the pool's own metrics, so the explanation should mostly name one.
+    assert.ok(poolMetricNamed >= Math.ceil(withPoolMetric / 2), `expected a pool metric among the metrics moved alike in most recognised windows that export one, got ${poolMetricNamed} of ${withPoolMetric}`);
     // Measured with model 0.2.0 (70e0264a6d45) and the shipped defaults: 10 of 12.
     assert.ok(recognised >= 6, `expected at least 6 of 12 recognised, got ${recognised}`);
   });

@@ -1,7 +1,7 @@
 import assert from 'node:assert/strict';
 import * as tf from '@tensorflow/tfjs-core';
 import '@tensorflow/tfjs-backend-cpu';
-import { combineSimilarity, computeEmbeddingCosine, computeMetricSignature, computeSignatureCosine, SIGNATURE_DEAD_BAND, SIGNATURE_FEATURES } from '../../../extension/core/model/librarySignature';
+import { combineSimilarity, computeEmbeddingCosine, computeMetricSignature, computeSignatureCosine, findSharedMovers, SIGNATURE_DEAD_BAND, SIGNATURE_FEATURES } from '../../../extension/core/model/librarySignature';
 import { createLibraryEntry, toMetricWindows } from '../../../extension/core/model/libraryEntry';
 import { createRandom } from '../../../training/simulator';
 
@@ -118,5 +118,34 @@ describe('combineSimilarity', () => {
   it('refuses a weight outside 0..1 or a zero sd, naming the value', () => {
     assert.throws(() => combineSimilarity(0, 0, { ...scale, signatureWeight: 1.5 }), /expected signatureWeight in 0..1, got 1.5/);
     assert.throws(() => combineSimilarity(0, 0, { ...scale, embeddingSd: 0 }), /expected positive sds/);
+  });
+});
+
+describe('findSharedMovers', () => {
+  // Constant vectors of the signature's length L: a vector of value v has norm |v|·√L.
+  const L = SIGNATURE_FEATURES.length;
+  const sig = (values: Record<string, number>): Map<string, Float64Array> => new Map(Object.entries(values).map(([id, v]) => [id, new Float64Array(L).fill(v)]));
+  const query = sig({ a: 2, b: -3, c: 0, d: 1 });
+  const e1 = sig({ a: 1, b: -4, d: -1 });
+  const e2 = sig({ a: 3, d: 0.5 });
+
+  it('ranks the metrics that moved the same way by the smaller of the two norms, averaged over agreeing incidents (hand-computed)', () => {
+    // b: only e1 has it, down in both → min(3, 4) = 3. a: up in all → (min(2, 1) + min(2, 3)) / 2 = 1.5.
+    // d: up in the query, down in e1, up in e2 → one of two agree (half suffices) → min(1, 0.5) = 0.5.
+    // c: inside the dead band (all zeros) → no direction, never listed.
+    assert.deepEqual(findSharedMovers(query, [e1, e2]), [{ id: 'b', direction: 'down' }, { id: 'a', direction: 'up' }, { id: 'd', direction: 'up' }]);
+    assert.deepEqual(findSharedMovers(query, [e1, e2], 2).map((m) => m.id), ['b', 'a']);
+  });
+
+  it('needs at least half of the incidents to agree', () => {
+    // With three incidents two must agree: d is up only in e2 now.
+    const e3 = sig({ a: 1, d: -2 });
+    assert.deepEqual(findSharedMovers(query, [e1, e2, e3]).map((m) => m.id), ['a']);
+    assert.deepEqual(findSharedMovers(query, []), []);
+  });
+
+  it('puts the strongest mover of each family first when families are given', () => {
+    const family: Record<string, string> = { a: 'latency', b: 'latency', d: 'saturation' };
+    assert.deepEqual(findSharedMovers(query, [e1, e2], 3, (id) => family[id]).map((m) => m.id), ['b', 'd', 'a']);
   });
 });

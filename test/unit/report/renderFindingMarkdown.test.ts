@@ -53,6 +53,16 @@ describe('findings markdown', () => {
     assert.match(md, /```mermaid\nxychart-beta/);
   });
 
+  it('names a library match and the metrics that moved alike, as something to check, not a cause', () => {
+    const md = renderFindingMarkdown({ ...finding, verdict: { ...finding.verdict, className: 'pantry_pool_exhaustion', probability: 0.8,
+      libraryMatch: { label: 'pantry_pool_exhaustion', exampleCount: 3, movedAlike: [{ id: 'db_pool_connections_active{pool="pantry-db"}', direction: 'up' }, { id: 'rps', direction: 'down' }] } } });
+    assert.match(md, /matches your past incident \*\*pantry_pool_exhaustion\*\* \(3 examples\)/);
+    assert.match(md, /Moved alike here and in those incidents \(check them\): `db_pool_connections_active\{pool="pantry-db"\}` ↑, `rps` ↓\./);
+    assert.doesNotMatch(md, /root cause (is|was)/i);
+    const plain = renderFindingMarkdown({ ...finding, verdict: { ...finding.verdict, libraryMatch: { label: 'x', exampleCount: 1 } } });
+    assert.doesNotMatch(plain, /Moved alike/);
+  });
+
   it('says "no call" when the classifier abstains', () => {
     const md = renderFindingMarkdown({ ...finding, verdict: { ...finding.verdict, isAbstained: true, abstainReason: 'confidence 0.41 below 0.5' } });
     assert.match(md, /no call — confidence 0.41 below 0.5/);

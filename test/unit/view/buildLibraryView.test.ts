@@ -6,7 +6,7 @@ import { buildLibraryView, buildNearestIncidentLink } from '../../../extension/c
 const T0 = Date.UTC(2026, 1, 3, 8, 30, 0);
 
 /** A finding of the invented Larkspur Provisions shop; only the verdict and library fields vary. */
-function makeFinding(extra: Partial<Pick<Finding, 'nearestIncidents'>>, libraryMatch?: { label: string; exampleCount: number }): Finding {
+function makeFinding(extra: Partial<Pick<Finding, 'nearestIncidents'>>, libraryMatch?: NonNullable<Finding['verdict']['libraryMatch']>): Finding {
   return {
     id: 'finding-lib', createdMs: T0, stepMs: 60_000,
     verdict: {
@@ -31,6 +31,12 @@ describe('buildLibraryView', () => {
     assert.equal(one?.matchText, 'Matches your past incident basket_cpu_starvation (1 example)');
     const three = buildLibraryView(makeFinding({ nearestIncidents: [] }, { label: 'basket_cpu_starvation', exampleCount: 3 }));
     assert.equal(three?.matchText, 'Matches your past incident basket_cpu_starvation (3 examples)');
+    assert.equal(three?.movedAlikeText, '');
+  });
+
+  it('lists the metrics that moved alike under a match, each with its direction', () => {
+    const view = buildLibraryView(makeFinding({ nearestIncidents: [] }, { label: 'basket_cpu_starvation', exampleCount: 2, movedAlike: [{ id: 'node_cpu_seconds_total{mode="steal"}', direction: 'up' }, { id: 'node_cpu_seconds_total{mode="idle"}', direction: 'down' }] }));
+    assert.equal(view?.movedAlikeText, 'Moved alike here and in those incidents: node_cpu_seconds_total{mode="steal"} ↑, node_cpu_seconds_total{mode="idle"} ↓');
   });
 
   it('lists nearest incidents in the given order with 3 significant digits and their postmortems', () => {
