@@ -69,7 +69,7 @@ export function matchLibrary(
   const competing = current.map((e) => ({ label: e.label, embedding: e.embedding, signature: query === undefined ? undefined : getEntrySignature(e, query.windowSpec) }));
   const blended = competeVerdict(baseProbabilities, computeClassSimilarities(querySide, competing), options);
   return {
-    verdict: explainMatch(blended, querySide.signature, competing, new Map((queryMetrics ?? []).map((m) => [m.id, m.family]))),
+    verdict: explainMatch(blended, querySide.signature, competing, queryMetrics ?? []),
     // By embedding cosine, the number shown beside each: ranking by the combined similarity was
     // measured too (fewShotStudies.ts) and was no better (held-out kinds on new systems 0.815
     // against 0.852 by embedding; same services 0.593 both, model 0.3.0, k = 3).
@@ -80,9 +80,10 @@ export function matchLibrary(
 }
 
 /** The verdict with the metrics that moved alike in the window and in the matched label's incidents, when it has a library match and there are some. */
-function explainMatch(verdict: BlendedVerdict, query: MetricSignature | undefined, entries: readonly { readonly label: string; readonly signature?: MetricSignature }[], families: ReadonlyMap<string, string>): BlendedVerdict {
+function explainMatch(verdict: BlendedVerdict, query: MetricSignature | undefined, entries: readonly { readonly label: string; readonly signature?: MetricSignature }[], metrics: readonly SignatureMetric[]): BlendedVerdict {
   const match = verdict.libraryMatch;
   if (match === undefined || query === undefined) return verdict;
+  const families = new Map<string, string>(metrics.map((m) => [m.id, m.family]));
   const signatures = entries.filter((e) => e.label === match.label && e.signature !== undefined).map((e) => e.signature as MetricSignature);
   const movedAlike = findSharedMovers(query, signatures, 3, (id) => families.get(id) ?? 'other');
   return movedAlike.length === 0 ? verdict : { ...verdict, libraryMatch: { ...match, movedAlike } };
