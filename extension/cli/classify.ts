@@ -85,10 +85,29 @@ export function toClassifyJson(f: Finding): object {
     changePoints: f.changePoints.map((c) => ({ time: iso(c.timeMs), series: c.seriesId, description: c.description })),
     caveats: f.caveats,
     openQuestions: f.openQuestions,
+    ...(f.verdict.libraryMatch ? { libraryMatch: f.verdict.libraryMatch } : {}),
+    ...(f.nearestIncidents ? { nearestIncidents: f.nearestIncidents } : {}),
     provenance: f.provenance,
     findingId: f.id,
     caution: 'Decision aid: an estimate from metric shapes, not a root cause.',
   };
+}
+
+/**
+ * The incident library's say, as lines of the text output: the match (with the metrics that moved
+ * alike) when a library label won, and the nearest past incidents. Empty without a library.
+ */
+export function describeLibraryLines(f: Finding): string[] {
+  const lines: string[] = [];
+  const match = f.verdict.libraryMatch;
+  if (match) {
+    const moved = match.movedAlike?.length ? `; moved alike: ${match.movedAlike.map((m) => `${m.id} ${m.direction === 'up' ? '↑' : '↓'}`).join(', ')}` : '';
+    lines.push(`  library: matches your past incident ${match.label} (${match.exampleCount} example${match.exampleCount === 1 ? '' : 's'})${moved}`);
+  }
+  if (f.nearestIncidents?.length) {
+    lines.push(`  nearest past incidents: ${f.nearestIncidents.map((n) => `${n.label} (similarity ${Number.isFinite(n.similarity) ? n.similarity.toFixed(2) : 'n/a'}${n.postmortem ? `, ${n.postmortem}` : ''})`).join('; ')}`);
+  }
+  return lines;
 }
 
 /** Insert or replace the block in `path` without touching anything else; writes atomically. */
@@ -125,6 +144,7 @@ export async function runClassify(args: readonly string[]): Promise<number> {
         `  estimate: ${v.isAbstained ? `no call (${v.abstainReason ?? 'low confidence'})` : `${v.className} (p = ${v.probability.toFixed(2)}, calibrated)`}; runner-up ${v.runnerUp.className} (${v.runnerUp.probability.toFixed(2)})`,
         `  incident window: ${iso(f.incident.startMs)} → ${iso(f.incident.endMs)}`,
         `  baseline window: ${iso(f.baseline.startMs)} → ${iso(f.baseline.endMs)}`,
+        ...describeLibraryLines(f),
         '  top metrics (Shapley, robust z):',
         ...f.metrics.slice(0, 5).map((m) => `    ${m.id}  ${m.shapley.toFixed(3)}  z=${m.effect.robustZ.toFixed(1)}`),
         parsed.markdownPath ? `  findings written to ${parsed.markdownPath}` : '',

@@ -4,7 +4,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import Papa from 'papaparse';
 import { analyzeExport, type AnalysisResult } from '../../../extension/node/analyze';
-import { toClassifyJson, writeFindingInto, parseRange, UsageError } from '../../../extension/cli/classify';
+import { describeLibraryLines, toClassifyJson, writeFindingInto, parseRange, UsageError } from '../../../extension/cli/classify';
 import { renderFindingMarkdown } from '../../../extension/core/report';
 import { runLibrary } from '../../../extension/cli/library';
 
@@ -101,6 +101,16 @@ describe('analyzeExport end to end (real bundled model, real labelled cloud seri
       assert.equal(withLibrary.finding.nearestIncidents?.[0]?.label, 'cpu-runaway');
       assert.ok((withLibrary.finding.nearestIncidents?.[0]?.similarity ?? 0) > 0.9);
       assert.match(renderFindingMarkdown(withLibrary.finding), /Similar past incidents/);
+      // The headless output carries the library's say too: JSON fields and text lines.
+      const json = toClassifyJson(withLibrary.finding) as { nearestIncidents?: { label: string }[]; libraryMatch?: { label: string; movedAlike?: { id: string }[] } };
+      assert.equal(json.nearestIncidents?.[0]?.label, 'cpu-runaway');
+      const lines = describeLibraryLines(withLibrary.finding);
+      assert.match(lines.join('\n'), /nearest past incidents: cpu-runaway \(similarity (0\.9\d|1\.00)\)/);
+      if (withLibrary.finding.verdict.libraryMatch) {
+        assert.equal(json.libraryMatch?.label, 'cpu-runaway');
+        assert.match(lines[0], /^ {2}library: matches your past incident cpu-runaway \(1 example\)/);
+      }
+      assert.deepEqual(describeLibraryLines(result.finding), [], 'no library, no lines');
     } finally {
       rmSync(dir, { recursive: true, force: true });
     }
