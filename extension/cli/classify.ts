@@ -129,6 +129,11 @@ export async function runClassify(args: readonly string[]): Promise<number> {
     process.stderr.write(`metric-triage classify: ${(e as Error).message}\n\n${CLASSIFY_USAGE}\n`);
     return 2;
   }
+  if (parsed.libraryPath !== undefined && !existsSync(parsed.libraryPath)) {
+    // An explicit library that is not there is most likely a mistyped path: matching against nothing would look like "no similar incident".
+    process.stderr.write(`metric-triage classify: --library ${parsed.libraryPath}: expected an incident library file, found none (create one with \`metric-triage library add\`)\n`);
+    return 1;
+  }
   try {
     const result = await analyzeExport(parsed.file, {
       modelDir: parsed.modelDir, incident: parsed.window, baseline: parsed.baseline, libraryPath: parsed.libraryPath,

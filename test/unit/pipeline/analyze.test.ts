@@ -4,7 +4,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import Papa from 'papaparse';
 import { analyzeExport, type AnalysisResult } from '../../../extension/node/analyze';
-import { describeLibraryLines, toClassifyJson, writeFindingInto, parseRange, UsageError } from '../../../extension/cli/classify';
+import { describeLibraryLines, runClassify, toClassifyJson, writeFindingInto, parseRange, UsageError } from '../../../extension/cli/classify';
 import { renderFindingMarkdown } from '../../../extension/core/report';
 import { runLibrary } from '../../../extension/cli/library';
 
@@ -114,6 +114,21 @@ describe('analyzeExport end to end (real bundled model, real labelled cloud seri
     } finally {
       rmSync(dir, { recursive: true, force: true });
     }
+  });
+
+  it('refuses an explicit --library file that does not exist, naming it, rather than matching against nothing', async () => {
+    const missing = join(tmpdir(), `mt-no-library-${process.pid}`, 'incident-library.json');
+    const written: string[] = [];
+    const original = process.stderr.write.bind(process.stderr);
+    process.stderr.write = ((chunk: string | Uint8Array): boolean => { written.push(String(chunk)); return true; }) as typeof process.stderr.write;
+    let code: number;
+    try {
+      code = await runClassify([join(NAB, 'series', FILE), '--library', missing, '--model', MODEL_DIR]);
+    } finally {
+      process.stderr.write = original;
+    }
+    assert.equal(code, 1);
+    assert.match(written.join(''), new RegExp(`--library ${missing.replace(/[.*+?^${}()|[\]\\/]/g, '\\$&')}: expected an incident library file, found none`));
   });
 
   it('classifies an incident window longer than the model\'s 512 samples (NAB grok_asg_anomaly, labelled windows)', async () => {
