@@ -3,6 +3,7 @@ import { join } from 'node:path';
 import { applyTextEdits, renderFindingMarkdown, upsertFindingBlock } from '../core/report';
 import type { Finding } from '../core/report/types';
 import { analyzeExport, type MsRange } from '../node/analyze';
+import { countExamples, formatMover } from '../core/report/libraryWording';
 
 export const CLASSIFY_USAGE = `metric-triage classify FILE [--window START/END] [--baseline START/END] [--json] [--markdown OUT.md] [--model DIR] [--library FILE]
   Classify the incident window of a metric export and explain it.
@@ -101,8 +102,8 @@ export function describeLibraryLines(f: Finding): string[] {
   const lines: string[] = [];
   const match = f.verdict.libraryMatch;
   if (match) {
-    const moved = match.movedAlike?.length ? `; moved alike: ${match.movedAlike.map((m) => `${m.id} ${m.direction === 'up' ? '↑' : '↓'}`).join(', ')}` : '';
-    lines.push(`  library: matches your past incident ${match.label} (${match.exampleCount} example${match.exampleCount === 1 ? '' : 's'})${moved}`);
+    const moved = match.movedAlike?.length ? `; moved alike: ${match.movedAlike.map((m) => formatMover(m)).join(', ')}` : '';
+    lines.push(`  library: matches your past incident ${match.label} (${countExamples(match.exampleCount)})${moved}`);
   }
   if (f.nearestIncidents?.length) {
     lines.push(`  nearest past incidents: ${f.nearestIncidents.map((n) => `${n.label} (similarity ${Number.isFinite(n.similarity) ? n.similarity.toFixed(2) : 'n/a'}${n.postmortem ? `, ${n.postmortem}` : ''})`).join('; ')}`);

@@ -16,6 +16,7 @@ import { createLibraryEmbedder } from '../core/model/libraryEmbed';
 import type { LoadedClassifier } from '../runtime/onnxRunner';
 import type { LibraryDocument, LibraryEntry, LibraryTimeSpan } from '../core/model/libraryTypes';
 import { LibraryFileError, readLibraryFile, updateLibraryFile } from '../node/libraryStore';
+import { countExamples } from '../core/report/libraryWording';
 
 /** The window the user is looking at in the metrics editor, as the editor knows it. */
 export interface ActiveLibraryWindow {
@@ -150,7 +151,7 @@ async function labelWindow(deps: LibraryCommandDeps, givenLabel: string | undefi
   const saved = await updateLibraryFile(file, (doc) => applyLibraryChange(doc, { upsert: [entry] }));
   deps.onLibraryChanged?.(saved);
   const count = saved.entries.filter((e) => e.label === label).length;
-  void vscode.window.showInformationMessage(`Saved this window as "${label}" (${count} example${count === 1 ? '' : 's'} in the incident library).`);
+  void vscode.window.showInformationMessage(`Saved this window as "${label}" (${countExamples(count)} in the incident library).`);
   return entry;
 }
 

@@ -2,6 +2,7 @@ import { describeProbability } from './estimativeWords';
 import { wrapFindingBlock } from './findingBlock';
 import { renderSparkline } from './sparkline';
 import type { Finding, MetricContribution, TimeSpan } from './types';
+import { countExamples, formatMover } from './libraryWording';
 
 /** Options of the markdown block. */
 export interface RenderOptions {
@@ -68,12 +69,12 @@ function renderVerdict(f: Finding): string[] {
     ];
   }
   const what = v.libraryMatch
-    ? `matches your past incident **${v.libraryMatch.label}** (${v.libraryMatch.exampleCount} example${v.libraryMatch.exampleCount === 1 ? '' : 's'})`
+    ? `matches your past incident **${v.libraryMatch.label}** (${countExamples(v.libraryMatch.exampleCount)})`
     : `looks like **${describeClass(v.className)}**`;
   const moved = v.libraryMatch?.movedAlike ?? [];
   return [
     `**Classifier estimate:** it is *${describeProbability(v.probability)}* (${pct(v.probability)}, calibrated) that this window ${what}; runner-up ${describeClass(v.runnerUp.className)} (${pct(v.runnerUp.probability)}).`,
-    ...(moved.length > 0 ? ['', `Moved alike here and in those incidents (check them): ${moved.map((m) => `\`${m.id.replace(/`/g, "'")}\` ${m.direction === 'up' ? '↑' : '↓'}`).join(', ')}.`] : []),
+    ...(moved.length > 0 ? ['', `Moved alike here and in those incidents (check them): ${moved.map((m) => formatMover(m, (id) => `\`${id.replace(/`/g, "'")}\``)).join(', ')}.`] : []),
   ];
 }
 

@@ -1,6 +1,7 @@
 import type { NearestIncident } from '../model/libraryVerdict';
 import type { Finding } from '../report/types';
 import type { LibraryView, NearestIncidentView } from './types';
+import { countExamples, formatMover } from '../report/libraryWording';
 
 function formatSimilarity(similarity: number): string {
   return Number.isFinite(similarity) ? similarity.toPrecision(3) : 'n/a';
@@ -37,10 +38,10 @@ export function buildLibraryView(finding: Finding, linked?: readonly NearestInci
   const match = finding.verdict.libraryMatch;
   const nearest = finding.nearestIncidents;
   if (!match && nearest === undefined && linked === undefined) return undefined;
-  const examples = match ? `${match.exampleCount} example${match.exampleCount === 1 ? '' : 's'}` : '';
+  const examples = match ? countExamples(match.exampleCount) : '';
   return {
     matchText: match ? `Matches your past incident ${match.label} (${examples})` : '',
-    movedAlikeText: match?.movedAlike?.length ? `Moved alike here and in those incidents: ${match.movedAlike.map((m) => `${m.id} ${m.direction === 'up' ? '↑' : '↓'}`).join(', ')}` : '',
+    movedAlikeText: match?.movedAlike?.length ? `Moved alike here and in those incidents: ${match.movedAlike.map((m) => formatMover(m)).join(', ')}` : '',
     nearest: linked !== undefined
       ? linked.map(buildNearestIncidentLink)
       : (nearest ?? []).map((n) => ({ label: n.label, similarityText: formatSimilarity(n.similarity), postmortem: n.postmortem ?? '' })),
