@@ -26,14 +26,15 @@ export interface LabelledWindows {
 }
 
 /**
- * Encode examples whose label is a built-in class; others (held-out few-shot classes) are skipped.
- * Examples with no usable metric are kept (mask all 0): the model must cope with them.
+ * Encode examples whose label is one of `classes` (default the built-in CLASSES; the label is the
+ * index there); others (held-out few-shot classes) are skipped. Examples with no usable metric are
+ * kept (mask all 0): the model must cope with them.
  */
-export function encodeExamples(examples: readonly LabelledWindows[], spec: WindowSpec): EncodedExample[] {
+export function encodeExamples(examples: readonly LabelledWindows[], spec: WindowSpec, classes: readonly string[] = CLASSES): EncodedExample[] {
   const projection = buildLinearProjection(spec);
   const out: EncodedExample[] = [];
   for (const example of examples) {
-    const label = (CLASSES as readonly string[]).indexOf(example.label);
+    const label = classes.indexOf(example.label);
     if (label < 0) continue;
     const batch = encodeMetricWindows(example.metrics, spec);
     const features = computeNodeFeatures(batch.values, batch.nodeCount, spec, projection);

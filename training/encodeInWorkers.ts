@@ -9,13 +9,14 @@ import { unpackEncodedChunk, type PackedChunk } from './packEncodedChunk';
 import type { SampleOptions } from './simulator';
 import { startTsWorker } from './startTsWorker';
 
-export async function encodeInWorkers(options: SampleOptions, workerCount = 2, chunkSize = 2000): Promise<EncodedExample[]> {
+/** Labels are indices in `labelClasses` (default the built-in CLASSES; examples of other classes are skipped). */
+export async function encodeInWorkers(options: SampleOptions, workerCount = 2, chunkSize = 2000, labelClasses?: readonly string[]): Promise<EncodedExample[]> {
   if (!Number.isInteger(workerCount) || workerCount < 1) throw new Error(`encodeInWorkers: expected workerCount as a positive integer, got ${workerCount}`);
   const starts: number[] = [];
   for (let first = 0; first < options.count; first += chunkSize) starts.push(first);
   const chunks = new Map<number, EncodedExample[]>();
   const entry = join(__dirname, 'encodeWorker.ts');
-  const workers = Array.from({ length: Math.min(workerCount, Math.max(1, starts.length)) }, () => startTsWorker(entry, { options }));
+  const workers = Array.from({ length: Math.min(workerCount, Math.max(1, starts.length)) }, () => startTsWorker(entry, { options, labelClasses }));
   let next = 0;
   try {
     await Promise.all(workers.map((worker) => new Promise<void>((resolve, reject) => {

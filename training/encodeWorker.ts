@@ -11,9 +11,9 @@ import { packEncodedChunk } from './packEncodedChunk';
 
 interface ChunkRequest { readonly firstIndex: number; readonly count: number }
 
-const { options } = workerData as { options: SampleOptions };
+const { options, labelClasses } = workerData as { options: SampleOptions; labelClasses?: readonly string[] };
 parentPort?.on('message', (request: ChunkRequest) => {
-  const examples = encodeExamples(sampleExamples({ ...options, firstIndex: request.firstIndex, count: request.count }), DEFAULT_WINDOW_SPEC);
+  const examples = encodeExamples(sampleExamples({ ...options, firstIndex: request.firstIndex, count: request.count }), DEFAULT_WINDOW_SPEC, labelClasses);
   const packed = packEncodedChunk(examples);
   // The arrays are fresh and unshared (packEncodedChunk allocates them), so their buffers move without a copy.
   const buffers = [packed.features, packed.familyIds, packed.mask, packed.nodeStart, packed.labels].map((a) => a.buffer as ArrayBuffer);
