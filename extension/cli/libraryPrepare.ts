@@ -11,6 +11,7 @@ import { extractLibraryMetrics, findIndexWindow } from '../core/model/libraryFra
 import type { LibraryTimeSpan } from '../core/model/libraryTypes';
 import type { IndexWindow, MetricFrame } from '../core/frame/types';
 import { loadFrame } from '../node/readExport';
+import { describeReaderIssues } from '../core/ingest';
 import { loadClassifierModel } from '../runtime/onnxRunner';
 import type { PreparedEntry } from './library';
 
@@ -27,9 +28,10 @@ export function findDefaultModelDir(): string {
  */
 export async function prepareEntryFromExport(command: { exportFile: string; window: LibraryTimeSpan; baseline?: LibraryTimeSpan; modelDir?: string }, cwd: string): Promise<PreparedEntry> {
   const file = resolve(cwd, command.exportFile);
-  const { frame, sha256 } = await loadFrame(file);
+  const { frame, sha256, result } = await loadFrame(file);
   if (frame.series.length === 0 || frame.timesMs.length < 3) {
-    throw new Error(`${command.exportFile}: expected at least 3 time steps of a numeric series, got ${frame.timesMs.length} steps of ${frame.series.length} series`);
+    const readerIssues = describeReaderIssues(result.issues);
+    throw new Error(`${command.exportFile}: expected at least 3 time steps of a numeric series, got ${frame.timesMs.length} steps of ${frame.series.length} series${readerIssues ? `. ${readerIssues}` : ''}`);
   }
   const window = requireWindow(frame, command.window, 'window', command.exportFile);
   const baseline = command.baseline !== undefined ? requireWindow(frame, command.baseline, 'baseline', command.exportFile) : chooseBaseline(frame, window, command.exportFile);

@@ -1,5 +1,6 @@
 import { basename } from 'node:path';
 import { suggestWindows } from '../core/detect';
+import { describeReaderIssues } from '../core/ingest';
 import { computeEffectSizes, computeShapley } from '../core/explain';
 import type { IndexWindow, MetricFrame } from '../core/frame/types';
 import { createClassifier } from '../core/model/classifier';
@@ -121,11 +122,13 @@ export async function analyzeExport(path: string, options: AnalyzeOptions): Prom
   progress(0, 'Reading export');
   const loaded = await loadFrame(path, { isCancelled: options.isCancelled, onProgress: (read, total) => progress(0.4 * (total > 0 ? read / total : 0), 'Reading export') });
   const { frame, sha256 } = loaded;
+  const readerIssues = describeReaderIssues(loaded.result.issues);
   if (frame.series.length === 0 || frame.timesMs.length < 3) {
-    throw new AnalysisError(`${path}: expected at least 3 time steps of at least one numeric series, got ${frame.timesMs.length} steps of ${frame.series.length} series`);
+    throw new AnalysisError(`${path}: expected at least 3 time steps of at least one numeric series, got ${frame.timesMs.length} steps of ${frame.series.length} series${readerIssues ? `. ${readerIssues}` : ''}`);
   }
   progress(0.4, 'Finding the incident window');
   const windows = chooseWindows(frame, options);
+  if (readerIssues) windows.caveats.unshift(readerIssues);
   const model = await loadClassifierModel(options.modelDir);
   const classifier = createClassifier(model.runner, model.spec);
   progress(0.5, 'Classifying');

@@ -89,6 +89,39 @@ describe('analyzeExport end to end (real bundled model, real labelled cloud seri
     }
   });
 
+  it('says which rows it skipped, by file and line, when an export cannot be used', async () => {
+    const dir = mkdtempSync(join(tmpdir(), 'mt-bad-'));
+    try {
+      const path = join(dir, 'ragged.csv');
+      // RFC 4180 §2.4: each line should contain the same number of fields; line 3 has one too many.
+      writeFileSync(path, 'time,cpu\n2026-01-01T00:00:00Z,1\n2026-01-01T00:01:00Z,2,3\n2026-01-01T00:02:00Z,3\n');
+      await assert.rejects(analyzeExport(path, { modelDir: MODEL_DIR }), (e: Error) => /got 2 steps/.test(e.message) && e.message.includes('ragged.csv:3: expected 2 fields, got 3; row skipped'));
+    } finally {
+      rmSync(dir, { recursive: true, force: true });
+    }
+  });
+
+  it('puts the rows it skipped first among the data caveats of a finding, in the markdown too', async () => {
+    const dir = mkdtempSync(join(tmpdir(), 'mt-ragged-'));
+    try {
+      const lines = readFileSync(join(NAB, 'series', FILE), 'utf8').split('\n');
+      // Line 101 of the copy gets an extra field (RFC 4180 §2.4), line 201 a timestamp that is no timestamp.
+      lines[100] = `${lines[100]},9`;
+      lines[200] = `yesterday,${lines[200].split(',')[1]}`;
+      const path = join(dir, 'cloud.csv');
+      writeFileSync(path, lines.join('\n'));
+      const analysed = await analyzeExport(path, { modelDir: MODEL_DIR, nowMs: Date.UTC(2026, 0, 1) });
+      const [first] = analysed.finding.caveats;
+      assert.match(first, /^The export reader reported 2 errors and 0 warnings/);
+      assert.ok(first.includes(`${path}:101: expected 2 fields, got 3; row skipped`), first);
+      assert.ok(first.includes(`${path}:201: expected a timestamp`), first);
+      const markdown = renderFindingMarkdown(analysed.finding);
+      assert.ok(markdown.includes(':101: expected 2 fields, got 3; row skipped'), markdown);
+    } finally {
+      rmSync(dir, { recursive: true, force: true });
+    }
+  });
+
   it('lists a labelled past incident of the same export as the nearest one when a library is given', async () => {
     const dir = mkdtempSync(join(tmpdir(), 'mt-lib-'));
     try {
