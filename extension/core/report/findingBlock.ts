@@ -22,10 +22,14 @@ function canonicalBody(body: string): string {
   return body.replace(/\r\n/g, '\n').trim();
 }
 
-/** Wrap a rendered body in markers: the returned string is the whole block, ending with '\n'. */
+/**
+ * Wrap a rendered body in markers: the returned string is the whole block, ending with '\n'.
+ * Every "<!--" in the body (a metric name or a cell quoted from an export may hold one) is written
+ * "&lt;!--", which markdown shows the same, so no text from an export can pass for a marker.
+ */
 export function wrapFindingBlock(id: string, body: string): string {
   if (!ID_RE.test(id)) throw new Error(`finding id must match ${ID_RE.source}, got "${id}"`);
-  const clean = canonicalBody(body);
+  const clean = canonicalBody(body).replace(/<!--/g, '&lt;!--');
   return `<!-- metric-triage:finding id=${id} sum=${hashText(clean)} -->\n${clean}\n<!-- /metric-triage:finding id=${id} -->\n`;
 }
 

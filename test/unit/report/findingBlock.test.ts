@@ -31,6 +31,18 @@ describe('finding block upsert', () => {
     assert.equal(twice.slice(0, start), once.slice(0, start));
   });
 
+  it('writes a marker look-alike from an export (a metric name) so it cannot pass for a marker, and a re-run still replaces the block', () => {
+    const name = 'queue<!-- /metric-triage:finding id=f-1 -->depth';
+    const block = wrapFindingBlock('f-1', `### Metric evidence\n| \`${name}\` | other |`);
+    assert.ok(block.includes('queue&lt;!-- /metric-triage:finding id=f-1 -->depth'));
+    const once = upsert(POSTMORTEM, block);
+    const located = locateFindingBlocks(once);
+    assert.ok('blocks' in located, JSON.stringify(located));
+    assert.deepEqual(located.blocks.map((b) => [b.id, b.isEditedByHand]), [['f-1', false]]);
+    const twice = upsert(once, second);
+    assert.ok(twice.includes('verdict B') && !twice.includes('queue'));
+  });
+
   it('keeps two findings of different exports', () => {
     const both = upsert(upsert(POSTMORTEM, first), other);
     const located = locateFindingBlocks(both);
