@@ -83,6 +83,11 @@ function parseEnvelope(envelope: string, isTruncated: boolean, issues: IssueColl
     issues.error(1, `expected resultType "matrix" (or "vector"), got ${JSON.stringify(resultType) ?? 'nothing'}`);
     return undefined;
   }
+  // Object elements were streamed out; whatever is left in data.result is not a series.
+  const others = data['result'];
+  if (others.length > 0) {
+    issues.error(1, `expected every element of data.result to be a series object {"metric":{…},"values":[…]}, got ${others.length} other element${others.length === 1 ? '' : 's'}, the first ${describe(others[0])}; skipped`);
+  }
   return doc;
 }
 
@@ -130,8 +135,30 @@ export function readPromValue(raw: unknown): number | undefined {
 
 function describe(value: unknown): string {
   if (value === undefined) return 'nothing';
-  const text = JSON.stringify(value) ?? String(value);
+  const text = previewJson(value, 40, 0);
   return text.length > 40 ? `${text.slice(0, 40)}…` : text;
+}
+
+/**
+ * JSON text of `value` as JSON.stringify writes it, but cut once it passes `limit` characters and
+ * with values nested deeper than 8 levels shown as "…": a document nested 100,000 levels deep or
+ * holding a huge array is described without overflowing the stack or writing it all out.
+ */
+export function previewJson(value: unknown, limit: number, depth: number): string {
+  if (typeof value === 'string') return JSON.stringify(value.length > limit ? value.slice(0, limit + 1) : value);
+  if (value === null || typeof value !== 'object') return JSON.stringify(value) ?? String(value);
+  if (depth >= 8) return '…';
+  const isArray = Array.isArray(value);
+  const items: readonly unknown[] = isArray ? value : Object.keys(value);
+  let out = isArray ? '[' : '{';
+  for (let i = 0; i < items.length && out.length <= limit; i++) {
+    if (i > 0) out += ',';
+    const budget = limit - out.length;
+    out += isArray
+      ? previewJson(items[i], budget, depth + 1)
+      : `${JSON.stringify(items[i])}:${previewJson((value as Record<string, unknown>)[items[i] as string], budget, depth + 1)}`;
+  }
+  return out.length > limit ? out : `${out}${isArray ? ']' : '}'}`;
 }
 
 /** 1-based line of a JSON.parse error, from the "position N" its message carries (1 if none). */

@@ -60,6 +60,21 @@ describe('range-query JSON reader', () => {
     assert.ok(messages.some((m) => /Unix time in seconds at series 1 sample 2, got "later"/.test(m)), messages.join('\n'));
     assert.ok(messages.some((m) => /expected \[<unix seconds>, "<value>"\] at series 1 sample 3/.test(m)), messages.join('\n'));
   });
+
+  it('reports elements of data.result that are not series objects instead of passing over them', () => {
+    const text = '{"status":"success","data":{"resultType":"matrix","result":[[1,2],{"metric":{"__name__":"x"},"values":[[1,"1"],[2,"2"]]},"x"]}}';
+    const read = readExportText(text, 'r.json');
+    assert.deepEqual(read.series.map((x) => x.name), ['x']);
+    assert.deepEqual(read.issues.map((i) => i.message), ['expected every element of data.result to be a series object {"metric":{…},"values":[…]}, got 2 other elements, the first [1,2]; skipped']);
+  });
+
+  it('describes a value nested 100,000 levels deep without overflowing the stack', () => {
+    const deep = `${'['.repeat(100_000)}${']'.repeat(100_000)}`;
+    const messages = readExportText(deep, 'deep.json').issues.map((i) => i.message);
+    assert.deepEqual(messages, ['expected a JSON object with "status" and "data", got [[[[[[[[…]]]]]]]]']);
+    const inResult = readExportText(`{"status":"success","data":{"resultType":"matrix","result":[${deep}]}}`, 'deep.json').issues.map((i) => i.message);
+    assert.match(inResult[0], /got 1 other element, the first \[\[\[\[\[\[\[\[…\]\]\]\]\]\]\]\]; skipped$/);
+  });
 });
 
 describe('range-query JSON reader, streamed', () => {
