@@ -3,6 +3,7 @@ import { LineSplitter } from './lineSplitter';
 import { IssueCollector, SeriesAccumulator, formatSeriesId, inferKindFromName } from './seriesAccumulator';
 import { TimeCellReader } from './timestamps';
 import type { IngestResult } from './types';
+import { readDecimalText } from './decimalText';
 
 /** One parsed line: measurement, tags, fields (raw text) and the timestamp text. */
 export interface LinePoint {
@@ -90,8 +91,7 @@ export function readFieldValue(text: string): number | undefined | 'invalid' {
   if (/^(t|T|true|True|TRUE|f|F|false|False|FALSE)$/.test(text)) return undefined;
   const body = last === 'i' || last === 'u' ? text.slice(0, -1) : text;
   if ((last === 'i' && !/^-?\d+$/.test(body)) || (last === 'u' && !/^\d+$/.test(body))) return 'invalid';
-  const value = Number(body);
-  return body.trim() === '' || Number.isNaN(value) ? 'invalid' : value;
+  return readDecimalText(body) ?? 'invalid';
 }
 
 /**

@@ -3,7 +3,8 @@ import { JsonValueSplitter } from './jsonValueSplitter';
 import { IssueCollector, SeriesAccumulator, formatSeriesId } from './seriesAccumulator';
 import { convertNanosStringToMs } from './timestamps';
 import type { IngestResult, SeriesKind } from './types';
-import { lineOfJsonError } from './rangeQueryJsonReader';
+import { lineOfJsonError, previewJson } from './rangeQueryJsonReader';
+import { readDecimalText } from './decimalText';
 
 type JsonObject = Record<string, unknown>;
 
@@ -81,7 +82,7 @@ function readMetricsData(text: string, line: number, series: Map<string, SeriesA
     if (!isObject(rm)) { issues.error(line, 'expected each resourceMetrics entry to be an object'); continue; }
     const resourceLabels = readAttributes(isObject(rm['resource']) ? rm['resource']['attributes'] : undefined);
     for (const sm of asArray(rm['scopeMetrics'])) {
-      if (!isObject(sm)) continue;
+      if (!isObject(sm)) { issues.error(line, 'expected each scopeMetrics entry to be an object; skipped'); continue; }
       const scopeName = isObject(sm['scope']) && typeof sm['scope']['name'] === 'string' ? sm['scope']['name'] : '';
       const baseLabels = scopeName === '' ? resourceLabels : { ...resourceLabels, otel_scope_name: scopeName };
       for (const metric of asArray(sm['metrics'])) readMetric(metric, baseLabels, line, series, issues);
@@ -146,7 +147,7 @@ function readPointTimeMs(sink: PointSink, name: string, point: JsonObject): numb
 
 function readNumberPoints(sink: PointSink, name: string, kind: SeriesKind, points: unknown): void {
   for (const point of asArray(points)) {
-    if (!isObject(point)) continue;
+    if (!isObject(point)) { sink.issues.error(sink.line, `expected each data point of "${name}" to be an object, got ${previewJson(point, 40, 0)}; point skipped`); continue; }
     const timeMs = readPointTimeMs(sink, name, point);
     if (Number.isNaN(timeMs)) continue;
     let value = readNumber(point['asDouble'] ?? point['asInt']);
@@ -161,7 +162,7 @@ function readNumberPoints(sink: PointSink, name: string, kind: SeriesKind, point
 
 function readSummaryPoints(sink: PointSink, name: string, kind: SeriesKind, points: unknown): void {
   for (const point of asArray(points)) {
-    if (!isObject(point)) continue;
+    if (!isObject(point)) { sink.issues.error(sink.line, `expected each data point of "${name}" to be an object, got ${previewJson(point, 40, 0)}; point skipped`); continue; }
     const timeMs = readPointTimeMs(sink, name, point);
     if (Number.isNaN(timeMs)) continue;
     const isNoValue = (Number(point['flags'] ?? 0) & FLAG_NO_RECORDED_VALUE) !== 0;
@@ -182,9 +183,11 @@ function readStartTimeMs(kind: SeriesKind, point: JsonObject): number {
 /** Numbers as proto3 JSON writes them: JSON numbers, decimal strings, "NaN", "Infinity", "-Infinity". */
 function readNumber(raw: unknown): number | undefined {
   if (typeof raw === 'number') return raw;
-  if (typeof raw !== 'string' || raw.trim() === '') return undefined;
-  const value = Number(raw);
-  return Number.isNaN(value) && raw !== 'NaN' ? undefined : value;
+  if (typeof raw !== 'string') return undefined;
+  if (raw === 'NaN') return NaN;
+  if (raw === 'Infinity') return Infinity;
+  if (raw === '-Infinity') return -Infinity;
+  return readDecimalText(raw);
 }
 
 /** OTLP KeyValue list → flat labels; non-string values are written as text (arrays/kvlists as JSON). */

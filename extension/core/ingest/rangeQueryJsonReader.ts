@@ -2,6 +2,7 @@ import type { ExportReader } from './exportReader';
 import { JsonResultStreamer } from './jsonResultStreamer';
 import { IssueCollector, SeriesAccumulator, formatSeriesId, inferKindFromName } from './seriesAccumulator';
 import type { IngestResult, RawSeries } from './types';
+import { readDecimalText } from './decimalText';
 
 type JsonObject = Record<string, unknown>;
 
@@ -122,15 +123,14 @@ function readSample(acc: SeriesAccumulator, sample: unknown, issues: IssueCollec
   acc.add(Math.round(timeS * 1000), value ?? NaN);
 }
 
-/** Sample value strings: decimal numbers, "NaN", "+Inf", "-Inf"; undefined when unreadable. */
+/** Sample value strings: decimal numbers, "NaN", "+Inf", "-Inf"; undefined when unreadable (also 0x…, or beyond a double's range). */
 export function readPromValue(raw: unknown): number | undefined {
   if (typeof raw === 'number') return raw;
   if (typeof raw !== 'string' || raw.trim() === '') return undefined;
   if (raw === 'NaN') return NaN;
   if (raw === '+Inf' || raw === 'Inf') return Infinity;
   if (raw === '-Inf') return -Infinity;
-  const value = Number(raw);
-  return Number.isNaN(value) ? undefined : value;
+  return readDecimalText(raw);
 }
 
 function describe(value: unknown): string {

@@ -19,6 +19,8 @@ const UNIT_SCALES: ReadonlyMap<string, readonly [string, number]> = new Map<stri
   ['%', ['%', 1]],
 ]);
 
+/** 0x…, 0b…, 0o… literals (with an optional sign). */
+const RADIX_PREFIX = /^[+-]?0[xXbBoO]/;
 const NUMBER_WITH_SUFFIX = /^([+-]?(?:\d[\d.,' ]*)?\d(?:[eE][+-]?\d+)?|[+-]?\.\d+)\s*([A-Za-zµ%/][A-Za-z0-9µ%/._]*)?$/;
 const COMMA_THOUSANDS = /^[+-]?\d{1,3}(,\d{3})+(\.\d*)?$/;
 const DOT_THOUSANDS_DECIMAL_COMMA = /^[+-]?\d{1,3}(\.\d{3})+(,\d*)?$/;
@@ -42,13 +44,16 @@ export class ValueCellReader {
 
   /**
    * Value of one cell. Missing markers → NaN with status Missing; unreadable text → NaN with
-   * status Invalid; `+Inf`/`-Inf`/`Infinity` → ±Infinity.
+   * status Invalid; `+Inf`/`-Inf`/`Infinity` → ±Infinity. Hexadecimal, binary and octal literals
+   * (`0x10`, which Number() reads as 16) and decimals beyond the range of a double (`1e309`, which
+   * Number() reads as Infinity) are Invalid: an export writes decimal numbers.
    */
   read(cell: string): number {
     this.unit = '';
-    // Fast path: most cells are plain numbers. Number('') and Number(' ') are 0, so guard them.
+    // Fast path: most cells are plain finite decimals. Number('') and Number(' ') are 0, and
+    // Number reads 0x/0b/0o literals and overflows to Infinity, so guard all of these.
     const fast = Number(cell);
-    if (!Number.isNaN(fast) && cell.length > 0 && cell.charCodeAt(0) > 32 && cell.charCodeAt(cell.length - 1) > 32) {
+    if (Number.isFinite(fast) && cell.length > 0 && cell.charCodeAt(0) > 32 && cell.charCodeAt(cell.length - 1) > 32 && !RADIX_PREFIX.test(cell)) {
       this.status = CellStatus.Ok;
       return fast;
     }
@@ -58,12 +63,13 @@ export class ValueCellReader {
   #readSlow(text: string): number {
     const lower = text.toLowerCase();
     if (MISSING_MARKERS.has(lower)) { this.status = CellStatus.Missing; return NaN; }
-    if (lower === '+inf' || lower === 'inf' || lower === 'infinity') { this.status = CellStatus.Ok; return Infinity; }
+    if (lower === '+inf' || lower === 'inf' || lower === 'infinity' || lower === '+infinity') { this.status = CellStatus.Ok; return Infinity; }
     if (lower === '-inf' || lower === '-infinity') { this.status = CellStatus.Ok; return -Infinity; }
+    if (RADIX_PREFIX.test(text)) { this.status = CellStatus.Invalid; return NaN; }
     const match = NUMBER_WITH_SUFFIX.exec(text);
     if (match === null) { this.status = CellStatus.Invalid; return NaN; }
     const value = this.#readGrouped(match[1].replace(/[ ']/g, ''));
-    if (Number.isNaN(value)) { this.status = CellStatus.Invalid; return NaN; }
+    if (!Number.isFinite(value)) { this.status = CellStatus.Invalid; return NaN; }
     this.status = CellStatus.Ok;
     const suffix = match[2];
     if (suffix === undefined) return value;

@@ -95,6 +95,22 @@ describe('wide CSV reader', () => {
     assert.ok(messages.includes('bad.csv:4 expected 3 fields, got 4; row skipped'), messages.join('\n'));
   });
 
+  it('reads only decimal numbers: 0x/0b/0o literals and values beyond a double are gaps with a warning, "Infinity" stays', () => {
+    // Number() would read "0x10" as 16 and "1e309" as Infinity (ECMA-262 StringToNumber); an
+    // export writes decimals (RFC 4180 says nothing of numbers; this is common practice).
+    const text = 'time,a\n1700000000,0x10\n1700000060,1e309\n1700000120,-0b1\n1700000180,Infinity\n1700000240,1e308\n';
+    const result = readExportText(text, 'radix.csv', 'wide-csv');
+    const values = Array.from(result.series[0].values);
+    assert.deepEqual(values.slice(0, 3).map(Number.isNaN), [true, true, true]);
+    assert.deepEqual(values.slice(3), [Infinity, 1e308]);
+    const messages = result.issues.map((i) => `${i.line} ${i.message}`);
+    assert.deepEqual(messages, [
+      '2 expected a number in column "a", got "0x10"; read as a gap',
+      '3 expected a number in column "a", got "1e309"; read as a gap',
+      '4 expected a number in column "a", got "-0b1"; read as a gap',
+    ]);
+  });
+
   it('ignores a trailing delimiter and tells duplicate column names apart', () => {
     const result = readExportText('time,a,a,\n1700000000,1,2,\n', 'd.csv', 'wide-csv');
     assert.deepEqual(result.series.map((s) => s.id), ['a', 'a{column="3"}']);

@@ -166,6 +166,21 @@ describe('OTLP JSON reader', () => {
     assert.match(frame.warnings.join(' '), /1 counter reset/);
   });
 
+  it('reports data points and scopeMetrics entries that are not objects, and number strings that are not decimal', () => {
+    // proto3 JSON mapping writes doubles as JSON numbers or as "NaN"/"Infinity"/"-Infinity" strings;
+    // "0x10" is none of them (Number() would read 16).
+    const doc = { resourceMetrics: [{ scopeMetrics: [7, { metrics: [{ name: 'cpu', gauge: { dataPoints: [
+      [1, 2], { timeUnixNano: '60000000000', asDouble: 0.5 }, { timeUnixNano: '120000000000', asDouble: '0x10' }, { timeUnixNano: '180000000000', asDouble: 'Infinity' },
+    ] } }] }] }] };
+    const read = readExportText(JSON.stringify(doc), 'points.json', 'otlp-jsonl');
+    assert.deepEqual(Array.from(read.series[0].values), [0.5, NaN, Infinity]);
+    assert.deepEqual(read.issues.map((i) => i.message), [
+      'expected each scopeMetrics entry to be an object; skipped',
+      'expected each data point of "cpu" to be an object, got [1,2]; point skipped',
+      'expected asDouble or asInt on a point of "cpu"; read as a gap',
+    ]);
+  });
+
   it('names the line of a broken JSON line and keeps the good lines', () => {
     const lines = readFixture('otlp-file-exporter.jsonl').split('\n');
     lines[1] = lines[1].replace('"resourceMetrics":', '"resourceMetrics"#');
