@@ -21,6 +21,12 @@ const UNIT_SCALES: ReadonlyMap<string, readonly [string, number]> = new Map<stri
 
 /** 0x…, 0b…, 0o… literals (with an optional sign). */
 const RADIX_PREFIX = /^[+-]?0[xXbBoO]/;
+
+/** Cheap pre-check on the hot path: only cells starting "0", "+0" or "-0" go to RADIX_PREFIX. */
+function mayHaveRadixPrefix(cell: string, first: number): boolean {
+  const zeroAt = first === 43 || first === 45 ? 1 : 0;
+  return cell.charCodeAt(zeroAt) === 48 && cell.length > zeroAt + 1 && RADIX_PREFIX.test(cell);
+}
 const NUMBER_WITH_SUFFIX = /^([+-]?(?:\d[\d.,' ]*)?\d(?:[eE][+-]?\d+)?|[+-]?\.\d+)\s*([A-Za-zµ%/][A-Za-z0-9µ%/._]*)?$/;
 const COMMA_THOUSANDS = /^[+-]?\d{1,3}(,\d{3})+(\.\d*)?$/;
 const DOT_THOUSANDS_DECIMAL_COMMA = /^[+-]?\d{1,3}(\.\d{3})+(,\d*)?$/;
@@ -53,7 +59,8 @@ export class ValueCellReader {
     // Fast path: most cells are plain finite decimals. Number('') and Number(' ') are 0, and
     // Number reads 0x/0b/0o literals and overflows to Infinity, so guard all of these.
     const fast = Number(cell);
-    if (Number.isFinite(fast) && cell.length > 0 && cell.charCodeAt(0) > 32 && cell.charCodeAt(cell.length - 1) > 32 && !RADIX_PREFIX.test(cell)) {
+    const first = cell.charCodeAt(0);
+    if (Number.isFinite(fast) && first > 32 && cell.charCodeAt(cell.length - 1) > 32 && !mayHaveRadixPrefix(cell, first)) {
       this.status = CellStatus.Ok;
       return fast;
     }
