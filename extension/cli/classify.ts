@@ -1,4 +1,4 @@
-import { existsSync, readFileSync, renameSync, writeFileSync } from 'node:fs';
+import { existsSync, readFileSync, renameSync, statSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { applyTextEdits, renderFindingMarkdown, upsertFindingBlock } from '../core/report';
 import type { Finding } from '../core/report/types';
@@ -113,6 +113,7 @@ export function describeLibraryLines(f: Finding): string[] {
 
 /** Insert or replace the block in `path` without touching anything else; writes atomically. */
 export function writeFindingInto(path: string, block: string): void {
+  if (existsSync(path) && !statSync(path).isFile()) throw new Error(`${path}: expected a markdown file to write the finding into, got a ${statSync(path).isDirectory() ? 'directory' : 'special file'}`);
   const before = existsSync(path) ? readFileSync(path, 'utf8') : '';
   const result = upsertFindingBlock(before, block);
   if ('error' in result) throw new Error(`${path}: ${result.error}`);

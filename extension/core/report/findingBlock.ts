@@ -130,7 +130,9 @@ export function upsertFindingBlock(text: string, block: string, insertAt?: numbe
   const located = locateFindingBlocks(text);
   if ('error' in located) return { error: `cannot place finding ${id}: ${located.error}` };
   const existing = located.blocks.find((b) => b.id === id);
-  const blockText = block.endsWith('\n') ? block.slice(0, -1) : block;
+  // Written with the document's own line ending, so a CRLF postmortem does not end up mixed.
+  const eol = detectLineEnding(text);
+  const blockText = (block.endsWith('\n') ? block.slice(0, -1) : block).replace(/\r?\n/g, eol);
   if (existing) {
     if (existing.isEditedByHand) {
       return { error: `finding ${id} (line ${lineAt(text, existing.start)}) was edited by hand since it was written; not replacing it. Remove its markers to keep your text, or delete the block to regenerate it.` };
@@ -140,10 +142,16 @@ export function upsertFindingBlock(text: string, block: string, insertAt?: numbe
   let at = insertAt === undefined ? text.length : Math.max(0, Math.min(text.length, insertAt));
   const inside = located.blocks.find((b) => at > b.start && at < b.end);
   if (inside) at = inside.end;
-  const before = at === 0 || text[at - 1] === '\n' ? '' : '\n';
-  const needsBlankBefore = at > 0 && !text.slice(0, at).endsWith('\n\n') ? (before === '' ? '\n' : '\n\n') : before;
-  const after = at < text.length && text[at] !== '\n' ? '\n\n' : '\n';
+  const before = at === 0 || text[at - 1] === '\n' ? '' : eol;
+  const needsBlankBefore = at > 0 && !text.slice(0, at).endsWith(eol + eol) ? (before === '' ? eol : eol + eol) : before;
+  const after = at < text.length && text[at] !== '\n' && text[at] !== '\r' ? eol + eol : eol;
   return { edits: [{ start: at, end: at, newText: `${at === 0 ? '' : needsBlankBefore}${blockText}${after}` }] };
+}
+
+/** '\r\n' when the document's first line break is CRLF, else '\n' (also for a document without one). */
+function detectLineEnding(text: string): string {
+  const lf = text.indexOf('\n');
+  return lf > 0 && text[lf - 1] === '\r' ? '\r\n' : '\n';
 }
 
 /** Apply edits (non-overlapping) to text; a helper for callers without an editor. */

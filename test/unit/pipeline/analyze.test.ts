@@ -78,6 +78,23 @@ describe('analyzeExport end to end (real bundled model, real labelled cloud seri
     }
   });
 
+  it('refuses to write the finding into a directory, naming it, and writes a CRLF postmortem in CRLF', () => {
+    const dir = mkdtempSync(join(tmpdir(), 'mt-pm-'));
+    try {
+      const block = renderFindingMarkdown(result.finding);
+      assert.throws(() => writeFindingInto(dir, block), (e: Error) => e.message === `${dir}: expected a markdown file to write the finding into, got a directory`);
+      const path = join(dir, 'windows.md');
+      const draft = '# Incident 43\r\n\r\n## Supporting information\r\n';
+      writeFileSync(path, draft);
+      writeFindingInto(path, block);
+      const out = readFileSync(path, 'utf8');
+      assert.ok(out.startsWith(draft));
+      assert.equal(/(^|[^\r])\n/.test(out), false);
+    } finally {
+      rmSync(dir, { recursive: true, force: true });
+    }
+  });
+
   it('names the file when the export holds no numeric series', async () => {
     const dir = mkdtempSync(join(tmpdir(), 'mt-bad-'));
     try {

@@ -80,6 +80,23 @@ describe('finding block upsert', () => {
     assert.ok('edits' in r);
   });
 
+  it('writes into a CRLF document with CRLF only, inserting or replacing, and the block still reads as untouched', () => {
+    const crlfPostmortem = POSTMORTEM.replace(/\n/g, '\r\n');
+    const once = upsert(crlfPostmortem, first, crlfPostmortem.indexOf('## Supporting'));
+    const twice = upsert(once, second);
+    for (const text of [once, twice]) {
+      assert.equal(/(^|[^\r])\n/.test(text), false, JSON.stringify(text));
+      const located = locateFindingBlocks(text);
+      assert.ok('blocks' in located);
+      assert.deepEqual(located.blocks.map((b) => [b.id, b.isEditedByHand]), [['f-1', false]]);
+    }
+    assert.ok(twice.includes('verdict B\r\n') && twice.startsWith('# Checkout slowdown\r\n\r\n## Summary\r\n'));
+    // One blank line before the block, as in an LF document.
+    assert.ok(once.includes('were slow.\r\n\r\n<!-- metric-triage:finding'), JSON.stringify(once));
+    // An LF document stays LF.
+    assert.equal(upsert(POSTMORTEM, first).includes('\r'), false);
+  });
+
   it('moves an insertion point that falls inside another block to after it', () => {
     const once = upsert(POSTMORTEM, other);
     const inside = once.indexOf('other export');
