@@ -3,6 +3,7 @@ import { spawnSync } from 'node:child_process';
 import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
+import { gzipSync } from 'node:zlib';
 import { readExportText } from '../../../extension/core/ingest';
 import { ExportFileError, IngestCancelledError, loadFrame, readExportFile, sha256File } from '../../../extension/node/readExport';
 import { formatStep, renderInspectText, summarizeExport } from '../../../extension/cli/inspect';
@@ -56,6 +57,28 @@ describe('readExportFile (node adapter)', () => {
   it('names the path when the file is missing or a directory', async () => {
     await assert.rejects(readExportFile(join(dir, 'missing.csv')), (err: unknown) => err instanceof ExportFileError && err.message.endsWith('missing.csv: cannot read the export (no such file)'));
     await assert.rejects(readExportFile(dir), (err: unknown) => err instanceof ExportFileError && /expected a file, got a directory/.test(err.message));
+  });
+
+  it('reads gzip-compressed exports (RFC 1952, compressed by node:zlib) as the plain file, hashing and counting the .gz bytes', async () => {
+    for (const name of ['wide.csv', 'long.csv', 'otlp-file-exporter.jsonl', 'line-protocol.lp', 'range-query-doc-example.json']) {
+      const plain = join(FIXTURES, name);
+      const packed = join(dir, `${name}.gz`);
+      writeFileSync(packed, gzipSync(readFileSync(plain)));
+      const seen: number[] = [];
+      const fromGzip = await readExportFile(packed, { chunkBytes: 16, onProgress: (read) => seen.push(read) });
+      const fromPlain = await readExportFile(plain);
+      assert.equal(fromGzip.format, fromPlain.format, name);
+      assert.deepEqual(fromGzip.series.map((x) => [x.id, [...x.timesMs], [...x.values]]), fromPlain.series.map((x) => [x.id, [...x.timesMs], [...x.values]]), name);
+      assert.equal(seen.at(-1), readFileSync(packed).length, name);
+      assert.equal((await loadFrame(packed)).sha256, await sha256File(packed), name);
+    }
+  });
+
+  it('names a truncated .gz file instead of reading what it holds as an empty export', async () => {
+    const whole = gzipSync(readFileSync(join(FIXTURES, 'wide.csv')));
+    const cut = join(dir, 'cut.csv.gz');
+    writeFileSync(cut, whole.subarray(0, whole.length - 12));
+    await assert.rejects(readExportFile(cut), (err: unknown) => err instanceof ExportFileError && err.message === `${cut}: expected gzip-compressed data after its gzip header, got unexpected end of file (a truncated or damaged .gz file?)`);
   });
 
   it('loadFrame returns the result, the frame and the same sha256 as sha256File', async () => {
