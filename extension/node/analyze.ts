@@ -69,11 +69,26 @@ export function findIndexWindow(frame: MetricFrame, range: MsRange, what: string
 }
 
 /** A baseline of the same length right before the incident (at least 3 samples), else after it. */
-function defaultBaseline(frame: MetricFrame, incident: IndexWindow): IndexWindow {
+/**
+ * A baseline as long as the incident window (3 samples at least) right before it, or right after it
+ * when fewer than 3 samples come before; undefined when neither side holds 3 samples.
+ */
+function defaultBaseline(frame: MetricFrame, incident: IndexWindow): IndexWindow | undefined {
   const length = Math.max(3, incident.endIndex - incident.startIndex + 1);
   if (incident.startIndex >= 3) return { startIndex: Math.max(0, incident.startIndex - length), endIndex: incident.startIndex - 1 };
   const n = frame.timesMs.length;
-  return { startIndex: incident.endIndex + 1, endIndex: Math.min(n - 1, incident.endIndex + length) };
+  if (n - 1 - incident.endIndex >= 3) return { startIndex: incident.endIndex + 1, endIndex: Math.min(n - 1, incident.endIndex + length) };
+  return undefined;
+}
+
+function requireBaseline(frame: MetricFrame, incident: IndexWindow): IndexWindow {
+  const baseline = defaultBaseline(frame, incident);
+  if (baseline) return baseline;
+  throw new AnalysisError(`the incident window ${formatSpan(frame, incident)} leaves fewer than 3 samples before and after it for a baseline; expected 3 or more quiet samples to compare it with (give a baseline window, or a shorter incident window)`);
+}
+
+function formatSpan(frame: MetricFrame, w: IndexWindow): string {
+  return `${new Date(frame.timesMs[w.startIndex]).toISOString()}/${new Date(frame.timesMs[w.endIndex]).toISOString()}`;
 }
 
 function chooseWindows(frame: MetricFrame, options: AnalyzeOptions): { incident: IndexWindow; baseline: IndexWindow; suggested: { incident: IndexWindow; baseline: IndexWindow }; caveats: string[]; changePoints: ChangePointEntry[] } {
@@ -82,12 +97,11 @@ function chooseWindows(frame: MetricFrame, options: AnalyzeOptions): { incident:
   const n = frame.timesMs.length;
   const fallbackIncident = { startIndex: Math.max(0, n - Math.max(3, Math.floor(n / 4))), endIndex: n - 1 };
   const suggestedIncident: IndexWindow = suggestion.incident ?? fallbackIncident;
-  const suggestedBaseline: IndexWindow = suggestion.baseline ?? defaultBaseline(frame, suggestedIncident);
-  if (!suggestion.incident) caveats.push(`No incident window stood out (${suggestion.reason}); the last quarter of the export was used.`);
-  if (suggestion.isBaselineAfterIncident) caveats.push('Nothing quiet came before the incident; the baseline was taken after it.');
+  const suggestedBaseline = suggestion.baseline ?? defaultBaseline(frame, suggestedIncident);
+  // What the suggestion did is said only when the suggestion is what is used.
+  if (!options.incident && !suggestion.incident) caveats.push(`No incident window stood out (${suggestion.reason}); the last quarter of the export was used.`);
+  if (!options.incident && !options.baseline && suggestion.isBaselineAfterIncident) caveats.push('Nothing quiet came before the incident; the baseline was taken after it.');
   let incident = options.incident ? findIndexWindow(frame, options.incident, 'incident window') : suggestedIncident;
-  const baseline = options.baseline ? findIndexWindow(frame, options.baseline, 'baseline window')
-    : options.incident ? defaultBaseline(frame, incident) : suggestedBaseline;
   if (options.incident) caveats.push('The incident window was chosen by hand.');
   if (incident.endIndex - incident.startIndex + 1 < 3) {
     // The classifier needs 3 samples; widen forward (or back at the end of the export) and say so.
@@ -95,6 +109,11 @@ function chooseWindows(frame: MetricFrame, options: AnalyzeOptions): { incident:
     incident = { startIndex: Math.max(0, endIndex - 2), endIndex };
     caveats.push('The incident window held fewer than 3 samples and was widened to 3.');
   }
+  // The default baseline is placed around the (widened) incident window, so the two never overlap.
+  const baseline = options.baseline ? findIndexWindow(frame, options.baseline, 'baseline window')
+    : options.incident || !suggestedBaseline ? requireBaseline(frame, incident) : suggestedBaseline;
+  const overlap = Math.min(baseline.endIndex, incident.endIndex) - Math.max(baseline.startIndex, incident.startIndex) + 1;
+  if (overlap > 0) caveats.push(`The baseline window shares ${overlap} of its ${baseline.endIndex - baseline.startIndex + 1} samples with the incident window, so the changes shown are understated.`);
   // One entry per series (its earliest change), so a metric that keeps shifting does not crowd out the rest.
   const firstPerSeries = new Map<string, (typeof suggestion.changePoints)[number]>();
   for (const c of [...suggestion.changePoints].sort((a, b) => a.timeMs - b.timeMs)) {
@@ -104,7 +123,7 @@ function chooseWindows(frame: MetricFrame, options: AnalyzeOptions): { incident:
     timeMs: c.timeMs, seriesId: c.seriesId,
     description: `level shift ${c.direction} (robust z ${c.magnitude.toFixed(1)}, ${c.method === 'cusum' ? 'CUSUM' : 'PELT'})`,
   }));
-  return { incident, baseline, suggested: { incident: suggestedIncident, baseline: suggestedBaseline }, caveats, changePoints };
+  return { incident, baseline, suggested: { incident: suggestedIncident, baseline: suggestedBaseline ?? baseline }, caveats, changePoints };
 }
 
 function slice(values: Float64Array, w: IndexWindow): Float64Array {
@@ -123,11 +142,17 @@ export async function analyzeExport(path: string, options: AnalyzeOptions): Prom
   const loaded = await loadFrame(path, { isCancelled: options.isCancelled, onProgress: (read, total) => progress(0.4 * (total > 0 ? read / total : 0), 'Reading export') });
   const { frame, sha256 } = loaded;
   const readerIssues = describeReaderIssues(loaded.result.issues);
-  if (frame.series.length === 0 || frame.timesMs.length < 3) {
-    throw new AnalysisError(`${path}: expected at least 3 time steps of at least one numeric series, got ${frame.timesMs.length} steps of ${frame.series.length} series${readerIssues ? `. ${readerIssues}` : ''}`);
+  if (frame.series.length === 0 || frame.timesMs.length < 6) {
+    throw new AnalysisError(`${path}: expected at least 6 time steps (3 for a baseline, 3 for the incident window) of at least one numeric series, got ${frame.timesMs.length} steps of ${frame.series.length} series${readerIssues ? `. ${readerIssues}` : ''}`);
   }
   progress(0.4, 'Finding the incident window');
-  const windows = chooseWindows(frame, options);
+  let windows: ReturnType<typeof chooseWindows>;
+  try {
+    windows = chooseWindows(frame, options);
+  } catch (error) {
+    // Window problems name the export they are about.
+    throw error instanceof AnalysisError ? new AnalysisError(`${path}: ${error.message}`) : error;
+  }
   if (readerIssues) windows.caveats.unshift(readerIssues);
   const model = await loadClassifierModel(options.modelDir);
   const classifier = createClassifier(model.runner, model.spec);

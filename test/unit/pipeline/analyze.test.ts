@@ -196,6 +196,40 @@ describe('analyzeExport end to end (real bundled model, real labelled cloud seri
     assert.ok(one.finding.caveats.some((c) => c.includes('widened to 3')));
   });
 
+  it('places the default baseline around the widened window, never over it, and does not speak of a suggestion it did not use', async () => {
+    const times = result.frame.timesMs;
+    const last = times[times.length - 1];
+    // One sample at the very end is widened backwards; the baseline must then end before it.
+    const atEnd = await analyzeExport(join(NAB, 'series', FILE), { modelDir: MODEL_DIR, incident: { startMs: last, endMs: last } });
+    assert.equal(atEnd.finding.incident.startIndex, times.length - 3);
+    assert.ok(atEnd.finding.baseline.endIndex < atEnd.finding.incident.startIndex, JSON.stringify([atEnd.finding.baseline, atEnd.finding.incident]));
+    assert.ok(!atEnd.finding.caveats.some((c) => /last quarter|baseline window shares/.test(c)), atEnd.finding.caveats.join('\n'));
+  });
+
+  it('says when a hand-given baseline overlaps the incident window', async () => {
+    const t = result.frame.timesMs;
+    const overlapping = await analyzeExport(join(NAB, 'series', FILE), { modelDir: MODEL_DIR, incident: { startMs: t[2000], endMs: t[2009] }, baseline: { startMs: t[1995], endMs: t[2004] } });
+    assert.ok(overlapping.finding.caveats.includes('The baseline window shares 5 of its 10 samples with the incident window, so the changes shown are understated.'), overlapping.finding.caveats.join('\n'));
+  });
+
+  it('refuses an export too short for a baseline and an incident window, and a window that leaves no room for a baseline, naming the file', async () => {
+    const dir = mkdtempSync(join(tmpdir(), 'mt-short-'));
+    try {
+      const rows = (n: number): string => ['time,cpu_utilization', ...Array.from({ length: n }, (_, i) => `2026-01-01T00:0${i}:00Z,${i}`)].join('\n');
+      const five = join(dir, 'five.csv');
+      writeFileSync(five, rows(5));
+      await assert.rejects(analyzeExport(five, { modelDir: MODEL_DIR }), (e: Error) => e.message === `${five}: expected at least 6 time steps (3 for a baseline, 3 for the incident window) of at least one numeric series, got 5 steps of 1 series`);
+      const eight = join(dir, 'eight.csv');
+      writeFileSync(eight, rows(8));
+      await assert.rejects(
+        analyzeExport(eight, { modelDir: MODEL_DIR, incident: { startMs: Date.parse('2026-01-01T00:01:00Z'), endMs: Date.parse('2026-01-01T00:05:00Z') } }),
+        (e: Error) => e.message.startsWith(`${eight}: the incident window 2026-01-01T00:01:00.000Z/2026-01-01T00:05:00.000Z leaves fewer than 3 samples before and after it for a baseline`),
+      );
+    } finally {
+      rmSync(dir, { recursive: true, force: true });
+    }
+  });
+
   it('rejects a window given without a time zone (RFC 3339 §5.6 requires one)', () => {
     assert.throws(() => parseRange('2014-02-26T13:45:00/2014-02-27T06:25:00', '--window'), UsageError);
     assert.deepEqual(parseRange('1996-12-19T16:39:57-08:00/1996-12-20T00:40:00Z', '--window'), { startMs: Date.UTC(1996, 11, 20, 0, 39, 57), endMs: Date.UTC(1996, 11, 20, 0, 40, 0) });
