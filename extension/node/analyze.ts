@@ -68,7 +68,6 @@ export function findIndexWindow(frame: MetricFrame, range: MsRange, what: string
   return { startIndex, endIndex };
 }
 
-/** A baseline of the same length right before the incident (at least 3 samples), else after it. */
 /**
  * A baseline as long as the incident window (3 samples at least) right before it, or right after it
  * when fewer than 3 samples come before; undefined when neither side holds 3 samples.

@@ -1,6 +1,7 @@
 /**
  * Node adapter for the ingest core: streams an export file from disk in chunks into the pure
- * readers, with progress, cancellation and a sha256 of the bytes computed in the same pass.
+ * readers (a gzip-compressed file through gunzip), with progress, cancellation and a sha256 of the
+ * file's bytes computed in the same pass.
  * Memory stays near the numeric payload: text is decoded and parsed one chunk at a time.
  */
 import { createHash } from 'node:crypto';
