@@ -27,6 +27,7 @@ function mayHaveRadixPrefix(cell: string, first: number): boolean {
   const zeroAt = first === 43 || first === 45 ? 1 : 0;
   return cell.charCodeAt(zeroAt) === 48 && cell.length > zeroAt + 1 && RADIX_PREFIX.test(cell);
 }
+
 const NUMBER_WITH_SUFFIX = /^([+-]?(?:\d[\d.,' ]*)?\d(?:[eE][+-]?\d+)?|[+-]?\.\d+)\s*([A-Za-zµ%/][A-Za-z0-9µ%/._]*)?$/;
 const COMMA_THOUSANDS = /^[+-]?\d{1,3}(,\d{3})+(\.\d*)?$/;
 const DOT_THOUSANDS_DECIMAL_COMMA = /^[+-]?\d{1,3}(\.\d{3})+(,\d*)?$/;
