@@ -117,6 +117,7 @@ export function createLineProtocolReader(file: string): ExportReader {
       return;
     }
     const timeMs = times.readEpoch(Number(point.timestamp));
+    if (Number.isNaN(timeMs)) { issues.error(line, `expected ${times.epochProblem || 'an integer timestamp'} at the end of the line, got "${point.timestamp.slice(0, 40)}"; line skipped`); return; }
     for (const [fieldKey, fieldText] of point.fields) {
       const value = readFieldValue(fieldText);
       const name = `${point.measurement}_${fieldKey}`;

@@ -93,7 +93,7 @@ class LongCsvReader implements ExportReader {
     }
     const timeMs = this.#timeReader.readTimeMs(fields[layout.time]);
     if (Number.isNaN(timeMs)) {
-      this.#issues.error(line, `expected a timestamp (RFC 3339 or epoch number) in column ${layout.time + 1}, got "${clip(fields[layout.time])}"; row skipped`);
+      this.#issues.error(line, `expected ${this.#timeReader.epochProblem || 'a timestamp (RFC 3339 or epoch number)'} in column ${layout.time + 1}, got "${clip(fields[layout.time])}"; row skipped`);
       return;
     }
     const series = this.#findSeries(fields, layout, line);

@@ -198,10 +198,26 @@ export class TimeCellReader {
     return timeMs;
   }
 
-  /** Epoch ms for a number whose unit is inferred once (from the first value) and then kept. */
+  /**
+   * What the last epoch number should have been when readEpoch refused it ('' otherwise), for the
+   * caller's message: "an epoch time in seconds like the first one, not milliseconds by its size".
+   */
+  epochProblem = '';
+
+  /**
+   * Epoch ms for a number whose unit is inferred once (from the first value) and then kept. A later
+   * number whose size says another unit gives NaN: read in the first one's unit it would land
+   * decades away (one nanosecond time among seconds would stretch the export to 1970).
+   */
   readEpoch(value: number): number {
+    this.epochProblem = '';
     if (!Number.isFinite(value)) return NaN;
-    if (this.#epochUnit === undefined) this.#epochUnit = inferEpochUnit(value);
+    const unit = inferEpochUnit(value);
+    if (this.#epochUnit === undefined) this.#epochUnit = unit;
+    else if (!this.#isUnitDocumented && unit !== this.#epochUnit) {
+      this.epochProblem = `an epoch time in ${UNIT_NAMES[this.#epochUnit]} like the first one, not ${UNIT_NAMES[unit]} by its size`;
+      return NaN;
+    }
     return convertEpochToMs(value, this.#epochUnit);
   }
 

@@ -79,7 +79,7 @@ class WideCsvReader implements ExportReader {
     const timeCell = fields[this.#timeIndex] ?? '';
     const timeMs = this.#timeReader.readTimeMs(timeCell);
     if (Number.isNaN(timeMs)) {
-      this.#issues.error(line, `expected a timestamp (RFC 3339 or epoch number) in column ${this.#timeIndex + 1}, got "${clip(timeCell)}"; row skipped`);
+      this.#issues.error(line, `expected ${this.#timeReader.epochProblem || 'a timestamp (RFC 3339 or epoch number)'} in column ${this.#timeIndex + 1}, got "${clip(timeCell)}"; row skipped`);
       return;
     }
     if (count < this.#expectedFields) this.#issues.warning(line, `expected ${this.#expectedFields} fields, got ${count}; missing cells read as gaps`);

@@ -111,6 +111,14 @@ describe('wide CSV reader', () => {
     ]);
   });
 
+  it('refuses an epoch cell in another unit than the first one (seconds, then milliseconds), wide and long', () => {
+    const wide = readExportText('time,a\n1700000000,1\n1700000060000,2\n1700000120,3\n', 'w.csv', 'wide-csv');
+    assert.deepEqual(wide.issues.map((i) => `${i.line} ${i.message}`), ['3 expected an epoch time in seconds like the first one, not milliseconds by its size in column 1, got "1700000060000"; row skipped']);
+    assert.equal(wide.series[0].timesMs.length, 2);
+    const long = readExportText('time,metric,value\n1700000000,a,1\n1700000060000,a,2\n1700000120,a,3\n', 'l.csv', 'long-csv');
+    assert.deepEqual(long.issues.map((i) => `${i.line} ${i.message}`), ['3 expected an epoch time in seconds like the first one, not milliseconds by its size in column 1, got "1700000060000"; row skipped']);
+  });
+
   it('ignores a trailing delimiter and tells duplicate column names apart', () => {
     const result = readExportText('time,a,a,\n1700000000,1,2,\n', 'd.csv', 'wide-csv');
     assert.deepEqual(result.series.map((s) => s.id), ['a', 'a{column="3"}']);

@@ -48,6 +48,14 @@ describe('line protocol reader', () => {
     assert.match(result.assumptions[0], /seconds/);
   });
 
+  it('refuses a timestamp whose size says another unit than the first one, naming both units', () => {
+    // 1700000000000000000 ns and 1700000060 s are the same minute a decade apart in size; read in
+    // nanoseconds the second would fall on 1970-01-01 and stretch the export over 53 years.
+    const result = readExportText('m v=1 1700000000000000000\nm v=2 1700000060\nm v=3 1700000120000000000\n', 'mixed.lp', 'line-protocol');
+    assert.deepEqual(result.issues.map((i) => `${i.line} ${i.message}`), ['2 expected an epoch time in nanoseconds like the first one, not seconds by its size at the end of the line, got "1700000060"; line skipped']);
+    assert.deepEqual(Array.from(result.series[0].timesMs, formatRfc3339Utc), ['2023-11-14T22:13:20.000Z', '2023-11-14T22:15:20.000Z']);
+  });
+
   it('names the line and expectation for malformed lines and missing timestamps', () => {
     const result = readExportText('m v=1 1700000000\nm\nm v=1\nm v=abc 1700000060\n', 'bad.lp', 'line-protocol');
     const errors = result.issues.map((i) => `${i.file}:${i.line} ${i.message}`);
