@@ -13,7 +13,7 @@ export const COMMANDS = {
   insertFindings: 'metricTriage.insertFindings',
 } as const;
 
-const EXPORT_FILTERS = { 'Metric exports': ['csv', 'json', 'jsonl', 'lp', 'txt', 'gz'] };
+const EXPORT_FILTERS = { 'Metric exports': ['csv', 'json', 'jsonl', 'lp', 'prom', 'om', 'txt', 'gz'] };
 
 /** The export a command acts on: its argument, the active editor's file, or one the user picks. */
 async function resolveExportUri(arg: unknown): Promise<vscode.Uri | undefined> {
@@ -21,7 +21,7 @@ async function resolveExportUri(arg: unknown): Promise<vscode.Uri | undefined> {
   const tabInput = vscode.window.tabGroups.activeTabGroup.activeTab?.input;
   if (tabInput instanceof vscode.TabInputCustom && tabInput.viewType === MetricsEditorProvider.viewType) return tabInput.uri;
   const active = vscode.window.activeTextEditor?.document.uri;
-  if (active && active.scheme === 'file' && /\.(csv|json|jsonl|lp|txt|gz)$/i.test(active.path)) return active;
+  if (active && active.scheme === 'file' && /\.(csv|json|jsonl|lp|prom|om|txt|gz)$/i.test(active.path)) return active;
   const picked = await vscode.window.showOpenDialog({ canSelectMany: false, filters: EXPORT_FILTERS, title: 'Metric export to classify' });
   return picked?.[0];
 }

@@ -5,6 +5,7 @@ import { createOtlpJsonReader } from './otlpJsonReader';
 import { createRangeQueryJsonReader } from './rangeQueryJsonReader';
 import { sniffFormat } from './sniffFormat';
 import type { ExportFormat, IngestResult } from './types';
+import { createTextExpositionReader } from './textExpositionReader';
 import { createWideCsvReader } from './wideCsvReader';
 
 const FACTORIES: Readonly<Record<ExportFormat, (file: string) => ExportReader>> = {
@@ -13,6 +14,7 @@ const FACTORIES: Readonly<Record<ExportFormat, (file: string) => ExportReader>> 
   'range-query-json': createRangeQueryJsonReader,
   'otlp-jsonl': createOtlpJsonReader,
   'line-protocol': createLineProtocolReader,
+  'text-exposition': createTextExpositionReader,
 };
 
 /**

@@ -1,5 +1,5 @@
 /** Formats the ingest layer recognises. */
-export type ExportFormat = 'wide-csv' | 'long-csv' | 'range-query-json' | 'otlp-jsonl' | 'line-protocol';
+export type ExportFormat = 'wide-csv' | 'long-csv' | 'range-query-json' | 'otlp-jsonl' | 'line-protocol' | 'text-exposition';
 
 /** How a series accumulates: gauges are levels; counters are cumulative totals (become rates). */
 export type SeriesKind = 'gauge' | 'counter' | 'delta' | 'histogram';

@@ -73,6 +73,7 @@ const CASES: ReadonlyArray<readonly [ExportFormat, readonly string[]]> = [
   ['range-query-json', ['range-query-doc-example.json', 'instant-query-doc-example.json']],
   ['otlp-jsonl', ['otlp-file-exporter.jsonl', 'otlp-example-shape.json']],
   ['line-protocol', ['line-protocol.lp']],
+  ['text-exposition', ['text-exposition-doc-example.prom']],
 ];
 
 describe('readers on mutated exports (fast-check fuzz)', () => {
@@ -92,7 +93,7 @@ describe('readers on mutated exports (fast-check fuzz)', () => {
 
   it('random junk of any kind never makes a reader throw', () => {
     fc.assert(
-      fc.property(fc.string({ maxLength: 2000, unit: 'binary' }), fc.constantFrom<ExportFormat>('wide-csv', 'long-csv', 'range-query-json', 'otlp-jsonl', 'line-protocol'), (text, format) => {
+      fc.property(fc.string({ maxLength: 2000, unit: 'binary' }), fc.constantFrom<ExportFormat>('wide-csv', 'long-csv', 'range-query-json', 'otlp-jsonl', 'line-protocol', 'text-exposition'), (text, format) => {
         checkResult(readInChunks(format, text, 64));
       }),
       { numRuns: 2000, seed: 7 },

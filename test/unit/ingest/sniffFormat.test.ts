@@ -16,6 +16,7 @@ describe('sniffFormat', () => {
       'wide.csv': 'wide-csv',
       'long.csv': 'long-csv',
       'semicolon-decimal-comma.csv': 'wide-csv',
+      'text-exposition-doc-example.prom': 'text-exposition',
     };
     for (const name of readdirSync(FIXTURES)) {
       assert.equal(sniffFormat(readFileSync(join(FIXTURES, name), 'utf8')).format, expected[name], name);
