@@ -76,6 +76,12 @@ function chooseGrid(all: readonly SamplePlan[], options: BuildFrameOptions, warn
     if (Number.isFinite(step)) steps.push(step);
   }
   if (minMs === Infinity) return { timesMs: new Float64Array(0), stepMs: 0 };
+  // Series of one sample each (one per time) have no step of their own: take it from all their times.
+  if (steps.length === 0) {
+    const union = Float64Array.from(new Set(all.flatMap((s) => Array.from(s.timesMs)))).sort();
+    const step = computeMedianStepMs(union);
+    if (Number.isFinite(step)) steps.push(step);
+  }
   let stepMs = options.stepMs ?? median(steps);
   if (!(stepMs > 0)) return { timesMs: Float64Array.of(minMs), stepMs: 0 };
   const maxGridPoints = options.maxGridPoints ?? 2_000_000;

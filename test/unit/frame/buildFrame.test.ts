@@ -81,6 +81,14 @@ describe('buildFrame', () => {
     assert.equal(empty.series[0].gapFraction, 1);
   });
 
+  it('places series of one sample each at their own times (the step comes from all their times), none dropped', () => {
+    const frame = buildFrame(result(rawSeries('a', [0], [1]), rawSeries('b', [60], [2]), rawSeries('c', [120], [3])));
+    assert.deepEqual([...frame.timesMs], [0, 60_000, 120_000]);
+    assert.equal(frame.stepMs, 60_000);
+    close(frame.series[1].values, [NaN, 2, NaN]);
+    close(frame.series[2].values, [NaN, NaN, 3]);
+  });
+
   it('decimates (widens the step) past maxGridPoints and says so', () => {
     const times = Array.from({ length: 1000 }, (_, i) => i);
     const frame = buildFrame(result(rawSeries('g', times, times)), { maxGridPoints: 100 });
