@@ -50,6 +50,15 @@ function escapeCell(text: string): string {
   return text.replace(/\|/g, '\\|').replace(/\r?\n/g, ' ');
 }
 
+/**
+ * Caveat text (which quotes cells and names from the export) as plain prose in markdown: outside
+ * `code spans`, "[" and "]" are escaped and "<" is written "&lt;", so a cell holding link or HTML
+ * syntax reads as the text it is; line breaks become spaces.
+ */
+function escapeProse(text: string): string {
+  return text.replace(/\r?\n/g, ' ').split(/(`[^`]*`)/).map((part, i) => (i % 2 === 1 ? part : part.replace(/[[\]]/g, '\\$&').replace(/</g, '&lt;'))).join('');
+}
+
 function seriesLabel(m: MetricContribution): string {
   const labels = Object.entries(m.labels).map(([k, v]) => `${k}=${v}`).join(', ');
   return labels ? `\`${m.name}\` (${labels})` : `\`${m.name}\``;
@@ -151,7 +160,7 @@ export function renderFindingMarkdown(f: Finding, options: RenderOptions = {}): 
     lines.push('');
   }
   lines.push('#### Open questions (not yet confirmed)', '', ...f.openQuestions.map((q) => `- ${q}`), '');
-  lines.push('#### Data caveats', '', ...f.caveats.map((c) => `- ${c}`), '');
+  lines.push('#### Data caveats', '', ...f.caveats.map((c) => `- ${escapeProse(c)}`), '');
   const settings = Object.entries(f.provenance.settings).map(([k, v]) => `${k}=${String(v)}`).join(', ');
   lines.push(
     '<details><summary>Provenance</summary>',

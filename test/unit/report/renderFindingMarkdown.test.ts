@@ -63,6 +63,13 @@ describe('findings markdown', () => {
     assert.doesNotMatch(plain, /Moved alike/);
   });
 
+  it('writes caveats that quote an export as plain text: link and HTML syntax escaped, code spans kept (CommonMark backslash escapes)', () => {
+    const quoting = { ...finding, caveats: ['a.csv:3: expected a number, got "[site](https://example.invalid) <b>x</b>"; read as a gap', 'worst: `rss [pod-1]`'] };
+    const md = renderFindingMarkdown(quoting);
+    assert.ok(md.includes('- a.csv:3: expected a number, got "\\[site\\](https://example.invalid) &lt;b>x&lt;/b>"; read as a gap'), md);
+    assert.ok(md.includes('- worst: `rss [pod-1]`'), md);
+  });
+
   it('says "no call" when the classifier abstains', () => {
     const md = renderFindingMarkdown({ ...finding, verdict: { ...finding.verdict, isAbstained: true, abstainReason: 'confidence 0.41 below 0.5' } });
     assert.match(md, /no call — confidence 0.41 below 0.5/);
