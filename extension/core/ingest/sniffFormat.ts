@@ -22,7 +22,8 @@ export interface SniffResult {
 
 /**
  * Format of an export from its first bytes (pass at least the first ~64 KiB) and, as a hint only,
- * its file name. JSON with "resourceMetrics" → OTLP; JSON with "resultType"/"status" → range
+ * its file name. `# TYPE`/`# HELP`/`# UNIT`/`# EOF` lines or `name{labels} value timestamp` samples
+ * → text exposition; JSON with "resourceMetrics" → OTLP; JSON with "resultType"/"status" → range
  * query; `key=value` lines → line protocol; otherwise CSV, long when the header has a value column
  * plus a name/series/labels column, else wide. Empty or unknown content falls back to the file
  * extension, then to wide CSV (whose reader reports what it expected).

@@ -207,7 +207,7 @@ export class TimeCellReader {
   /**
    * Epoch ms for a number whose unit is inferred once (from the first value) and then kept. A later
    * number whose size says another unit gives NaN: read in the first one's unit it would land
-   * decades away (one nanosecond time among seconds would stretch the export to 1970).
+   * decades away (one time in seconds among nanoseconds would stretch the export back to 1970).
    */
   readEpoch(value: number): number {
     this.epochProblem = '';
